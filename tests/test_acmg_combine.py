@@ -1,0 +1,251 @@
+"""Combiner checks against the published combining rules and their worked values.
+
+Sources named beside each check:
+* Richards et al., Genet Med 2015;17:405-424, Table 5 (rules for combining criteria).
+* Tavtigian et al., Genet Med 2018;20:1054-1060, Table "Calculations to test the internal
+  consistency of current ACMG/AMP guidelines" (combined odds of pathogenicity and posterior
+  at prior 0.10 for each Table 5 rule).
+* Tavtigian et al., Hum Mutat 2020;41:1734-1737, Table 3 (point bands).
+"""
+import math
+
+import pytest
+
+from irdtriage.acmg.combine import (
+    bayes_class, combine, odds_of_pathogenicity, point_class, points, posterior, rule_class,
+)
+from irdtriage.models import CriterionResult
+
+P_SUP = ["PP1", "PP2", "PP3", "PP4", "PP5"]
+P_MOD = ["PM1", "PM2", "PM3", "PM4", "PM5", "PM6"]
+P_STR = ["PS1", "PS2", "PS3", "PS4"]
+B_SUP = ["BP1", "BP2", "BP3", "BP4", "BP5", "BP6", "BP7"]
+B_STR = ["BS1", "BS2", "BS3", "BS4"]
+
+
+def crit(vs=0, s=0, m=0, p=0, bs=0, bp=0, ba=0):
+    out = [CriterionResult("PVS1", True, "VeryStrong")] if vs else []
+    out += [CriterionResult(c, True, "Strong") for c in P_STR[:s]]
+    out += [CriterionResult(c, True, "Moderate") for c in P_MOD[:m]]
+    out += [CriterionResult(c, True, "Supporting") for c in P_SUP[:p]]
+    out += [CriterionResult(c, True, "Strong") for c in B_STR[:bs]]
+    out += [CriterionResult(c, True, "Supporting") for c in B_SUP[:bp]]
+    if ba:
+        out.append(CriterionResult("BA1", True, "StandAlone"))
+    return out
+
+
+# (counts, expected class, rule label prefix) — Richards 2015 Table 5, every rule.
+TABLE5 = [
+    (dict(vs=1, s=1), "Pathogenic", "Pathogenic (i)(a)"),
+    (dict(vs=1, m=2), "Pathogenic", "Pathogenic (i)(b)"),
+    (dict(vs=1, m=1, p=1), "Pathogenic", "Pathogenic (i)(c)"),
+    (dict(vs=1, p=2), "Pathogenic", "Pathogenic (i)(d)"),
+    (dict(s=2), "Pathogenic", "Pathogenic (ii)"),
+    (dict(s=1, m=3), "Pathogenic", "Pathogenic (iii)(a)"),
+    (dict(s=1, m=2, p=2), "Pathogenic", "Pathogenic (iii)(b)"),
+    (dict(s=1, m=1, p=4), "Pathogenic", "Pathogenic (iii)(c)"),
+    (dict(vs=1, m=1), "Likely pathogenic", "Likely pathogenic (i)"),
+    (dict(s=1, m=1), "Likely pathogenic", "Likely pathogenic (ii)"),
+    (dict(s=1, m=2), "Likely pathogenic", "Likely pathogenic (ii)"),
+    (dict(s=1, p=2), "Likely pathogenic", "Likely pathogenic (iii)"),
+    (dict(m=3), "Likely pathogenic", "Likely pathogenic (iv)"),
+    (dict(m=2, p=2), "Likely pathogenic", "Likely pathogenic (v)"),
+    (dict(m=1, p=4), "Likely pathogenic", "Likely pathogenic (vi)"),
+    (dict(ba=1), "Benign", "Benign (i)"),
+    (dict(bs=2), "Benign", "Benign (ii)"),
+    (dict(bs=1, bp=1), "Likely benign", "Likely benign (i)"),
+    (dict(bp=2), "Likely benign", "Likely benign (ii)"),
+]
+
+
+@pytest.mark.parametrize("counts,expected,rule", TABLE5)
+def test_table5_every_rule(counts, expected, rule):  # Richards 2015 Table 5
+    cls, fired = rule_class(crit(**counts))
+    assert cls == expected
+    assert fired.startswith(rule)
+
+
+# One criterion short of each rule: boundaries (Richards 2015 Table 5 read literally).
+BELOW = [
+    dict(vs=1),  # PVS1 alone
+    dict(vs=1, p=1),
+    dict(s=1),
+    dict(s=1, p=1),
+    dict(m=2),
+    dict(m=2, p=1),
+    dict(m=1, p=3),
+    dict(p=5),  # supporting only never reaches LP under Table 5
+    dict(bs=1),  # one strong benign alone
+    dict(bp=1),
+]
+
+
+@pytest.mark.parametrize("counts", BELOW)
+def test_table5_boundaries_are_uncertain(counts):  # Richards 2015 Table 5
+    cls, fired = rule_class(crit(**counts))
+    assert cls == "Uncertain significance"
+    assert fired.startswith("Uncertain significance (i)")
+
+
+def test_strong_plus_four_moderate_is_pathogenic_not_likely():  # Table 5 P(iii)(a) ">=3 Moderate"
+    assert rule_class(crit(s=1, m=4))[0] == "Pathogenic"
+
+
+@pytest.mark.parametrize("counts", [dict(vs=1, s=1, bp=1), dict(m=3, bs=1), dict(p=1, bp=2)])
+def test_conflict_is_uncertain(counts):  # Richards 2015 Table 5, Uncertain significance (ii)
+    cls, fired = rule_class(crit(**counts))
+    assert cls == "Uncertain significance"
+    assert "contradictory" in fired
+
+
+def test_downgraded_pvs1_counts_as_applied_strength():  # Richards 2015 Table 5 + strengths as applied
+    c = [CriterionResult("PVS1", True, "Strong"), CriterionResult("PM2", True, "Supporting")]
+    # Strong + Supporting is not a Table 5 rule (needs >=2 Supporting for LP(iii)).
+    assert rule_class(c)[0] == "Uncertain significance"
+    c.append(CriterionResult("PP3", True, "Supporting"))
+    assert rule_class(c)[0] == "Likely pathogenic"
+
+
+def test_not_met_and_not_evaluable_are_ignored():
+    c = crit(s=2) + [CriterionResult("BS1", False, None), CriterionResult("BP4", None, None)]
+    assert combine(c).classification == "Pathogenic"
+
+
+def test_invalid_strength_rejected():
+    with pytest.raises(ValueError):
+        combine([CriterionResult("PS3", True, "StandAlone")])
+    with pytest.raises(ValueError):
+        combine([CriterionResult("PS3", True, None)])
+
+
+# Tavtigian 2018, table of combined odds (OP) and posteriors at prior 0.10 for Table 5 rules.
+# Tavtigian 2018, table of combined odds (OP) and posteriors at prior 0.10 for Table 5 rules,
+# compared at the precision the paper prints them (OP decimals, posterior decimals).
+TAVTIGIAN_2018 = [
+    (dict(vs=1, s=1), 6548, 0, 0.999, 3),   # Path (ia)
+    (dict(vs=1, m=2), 6548, 0, 0.999, 3),   # Path (ib)
+    (dict(vs=1, m=1, p=1), 3148, 0, 0.997, 3),  # Path (ic)
+    (dict(vs=1, p=2), 1514, 0, 0.994, 3),   # Path (id)
+    (dict(s=1, m=3), 1514, 0, 0.994, 3),    # Path (iiia)
+    (dict(s=1, m=2, p=2), 1514, 0, 0.994, 3),  # Path (iiib)
+    (dict(s=1, m=1, p=4), 1514, 0, 0.994, 3),  # Path (iiic)
+    (dict(s=1, m=1), 81, 0, 0.900, 3),      # Likely Path (ii)
+    (dict(s=1, p=2), 81, 0, 0.900, 3),      # Likely Path (iii)
+    (dict(m=3), 81, 0, 0.900, 3),           # Likely Path (iv)
+    (dict(m=2, p=2), 81, 0, 0.900, 3),      # Likely Path (v)
+    (dict(m=1, p=4), 81, 0, 0.900, 3),      # Likely Path (vi)
+    (dict(bs=1, bp=1), 0.03, 2, 0.0028, 4),  # Likely Benign (i)
+    (dict(bp=2), 0.23, 2, 0.025, 3),        # Likely Benign (ii)
+    (dict(bs=2), 0.0028, 4, 0.00032, 5),    # Benign (ii)
+]
+
+
+@pytest.mark.parametrize("counts,op,op_dp,post,post_dp", TAVTIGIAN_2018)
+def test_tavtigian_2018_worked_values(counts, op, op_dp, post, post_dp):
+    got_op = odds_of_pathogenicity(crit(**counts))
+    # within one unit of the last printed digit (the paper truncates some values, e.g. 0.0028)
+    assert abs(got_op - op) < 10 ** -op_dp
+    assert abs(posterior(got_op) - post) < 10 ** -post_dp
+
+
+def test_tavtigian_2018_inconsistent_rules():
+    # Tavtigian 2018 abstract: one LP rule is mathematically Pathogenic (PVS1 + 1 Moderate)
+    # and one Pathogenic rule is actually LP (>= 2 Strong).
+    assert bayes_class(posterior(odds_of_pathogenicity(crit(vs=1, m=1)))) == "Pathogenic"
+    assert bayes_class(posterior(odds_of_pathogenicity(crit(s=2)))) == "Likely pathogenic"
+
+
+def test_posterior_formula_and_prior():  # Tavtigian 2018 equation, prior 0.10
+    assert posterior(1.0) == pytest.approx(0.10)
+    assert posterior(350.0) == pytest.approx(35.0 / 35.9)
+
+
+@pytest.mark.parametrize("post,cls", [
+    (0.9901, "Pathogenic"), (0.99, "Likely pathogenic"), (0.90, "Likely pathogenic"),
+    (0.89, "Uncertain significance"), (0.10, "Uncertain significance"),
+    (0.0999, "Likely benign"), (0.001, "Likely benign"), (0.00099, "Benign"),
+])
+def test_bayes_bands(post, cls):  # Tavtigian 2018 posterior thresholds
+    assert bayes_class(post) == cls
+
+
+@pytest.mark.parametrize("pts,cls", [
+    (10, "Pathogenic"), (9, "Likely pathogenic"), (6, "Likely pathogenic"),
+    (5, "Uncertain significance"), (0, "Uncertain significance"), (-1, "Likely benign"),
+    (-6, "Likely benign"), (-7, "Benign"),
+])
+def test_point_bands(pts, cls):  # Tavtigian 2020 Table 3
+    assert point_class(pts) == cls
+
+
+def _build(total):
+    """Distinct criteria whose strengths add up to `total` points (greedy)."""
+    if total >= 0:
+        pools = [("VeryStrong", 8, ["PVS1"]), ("Strong", 4, P_STR), ("Moderate", 2, P_MOD),
+                 ("Supporting", 1, P_SUP)]
+    else:
+        pools = [("Strong", 4, B_STR), ("Supporting", 1, B_SUP)]
+    left, out = abs(total), []
+    for strength, value, codes in pools:
+        for code in codes:
+            if left >= value:
+                out.append(CriterionResult(code, True, strength))
+                left -= value
+    assert left == 0
+    return out
+
+
+@pytest.mark.parametrize("total", range(-23, 30))
+def test_points_and_posterior_agree_on_every_sum(total):
+    # Tavtigian 2020: points are proportional to log(odds) and recapitulate the 2018 posterior
+    # (Table 3 bands equal the 2018 posterior bands for every point sum).
+    c = _build(total)
+    assert points(c) == total
+    assert bayes_class(posterior(odds_of_pathogenicity(c))) == point_class(total)
+
+
+def test_points_values():  # Tavtigian 2020: Supporting 1, Moderate 2, Strong 4, Very Strong 8
+    assert points(crit(vs=1)) == 8
+    assert points(crit(s=1)) == 4
+    assert points(crit(m=1)) == 2
+    assert points(crit(p=1)) == 1
+    assert points(crit(bs=1, bp=1)) == -5
+
+
+def test_ba1_stand_alone_everywhere():  # Richards 2015 Table 5 Benign (i); Ghosh 2018
+    r = combine(crit(ba=1, vs=1, m=1))
+    assert (r.classification, r.point_class, r.bayes_class) == ("Benign",) * 3
+    assert r.points == 10
+    assert "BA1" in r.note
+
+
+def test_agreement_has_no_note():
+    r = combine(crit(vs=1, s=1))
+    assert r.classification == r.point_class == r.bayes_class == "Pathogenic"
+    assert r.note == ""
+    assert r.rule.startswith("Pathogenic (i)(a)")
+
+
+def test_disagreement_note_for_pvs1_plus_moderate():
+    # Tavtigian 2018: LP (i) is mathematically Pathogenic (10 points, posterior 0.994).
+    r = combine(crit(vs=1, m=1))
+    assert r.classification == "Likely pathogenic"
+    assert r.point_class == "Pathogenic" and r.points == 10
+    assert r.bayes_class == "Pathogenic"
+    assert "rule table gives Likely pathogenic" in r.note
+
+
+def test_conflict_points_can_net_out():
+    # PVS1 + PS3 + BP4: Table 5 Uncertain (ii); points 8 + 4 - 1 = 11 -> Pathogenic.
+    r = combine(crit(vs=1, s=1, bp=1))
+    assert r.classification == "Uncertain significance"
+    assert r.points == 11 and r.point_class == "Pathogenic"
+    assert r.note
+
+
+def test_empty_is_uncertain():
+    r = combine([])
+    assert (r.classification, r.points, r.point_class, r.bayes_class) == (
+        "Uncertain significance", 0, "Uncertain significance", "Uncertain significance")
+    assert r.posterior == pytest.approx(0.10)
