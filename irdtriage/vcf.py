@@ -1,0 +1,629 @@
+"""VCF/BCF intake: read only the panel's regions, split and trim alleles, recode genotypes.
+
+Two ways in, giving the same variants:
+
+* indexed (bgzipped VCF with .tbi/.csi, or BCF with .csi): ``fetch`` each merged panel
+  interval through htslib — the rest of the genome is never read;
+* not indexed (plain ``.vcf``, gzip/bgzip without an index): stream the raw text, look only
+  at CHROM and POS of each line against the sorted panel intervals, and hand the few lines
+  that overlap a panel interval to htslib (written with the original header to a private
+  temporary VCF) for proper parsing.  Unindexed BCF is iterated with pysam directly.
+
+A record is in the panel when any of its reference bases overlaps a padded gene interval
+(the same overlap rule htslib's region fetch uses for ordinary alleles).
+"""
+from __future__ import annotations
+
+import bisect
+import gzip
+import os
+import tempfile
+import zlib
+from dataclasses import dataclass, field
+from typing import Any, Iterable, Iterator, Optional
+
+import pysam
+
+from .build import bare, check_build, chrom_style as _chrom_style, explain_build
+from .errors import InputError
+from .models import Call, Panel, Variant
+
+# Empty BGZF block that ends every complete bgzip file (SAM/BAM format specification, 4.1.2).
+BGZF_EOF = bytes.fromhex("1f8b08040000000000ff0600424302001b0003000000000000000000")
+
+NO_ANNOTATION_HINT = (
+    "no CSQ/ANN annotation found: consequences unknown; annotate with your annotator first"
+)
+
+
+@dataclass
+class QualityThresholds:
+    """Per-call quality limits used to flag (not drop) calls.
+
+    Defaults are common practice for germline short-variant calls from short-read
+    sequencing: depth >= 8 reads, genotype quality >= 20 (Phred, 1% error), heterozygous
+    allele balance within 0.2-0.8 and homozygous-alt balance >= 0.8, FILTER PASS.
+    All are configurable; set a value to None to switch that check off.
+    """
+
+    min_dp: Optional[int] = 8
+    min_gq: Optional[int] = 20
+    het_ab_min: Optional[float] = 0.2
+    het_ab_max: Optional[float] = 0.8
+    hom_ab_min: Optional[float] = 0.8
+    require_pass: bool = True
+
+
+@dataclass
+class VcfIntake:
+    path: str
+    build: Optional[str]
+    samples: list[str]
+    proband: str
+    variants: list[Variant]
+    counts: dict[str, int]
+    warnings: list[str]
+    chrom_style: str
+    header_info: dict[str, Any] = field(default_factory=dict)
+
+
+COUNT_KEYS = (
+    "records_read", "alleles", "in_panel", "no_alt_in_sample", "failed_quality", "symbolic_skipped",
+)
+
+
+# ---------------------------------------------------------------------------
+# Panel intervals
+# ---------------------------------------------------------------------------
+def panel_intervals(panel: Panel, build: str, padding: int = 50) -> list[tuple[str, int, int, str]]:
+    """Sorted (bare_chrom, start, end, symbol) per panel gene, padded, 1-based inclusive."""
+    try:  # the panel module's own function when present (same contract)
+        from . import panel as panel_mod  # type: ignore
+
+        fn = getattr(panel_mod, "intervals", None)
+        if fn is not None:
+            return list(fn(panel, build, padding))
+    except ImportError:
+        pass
+    out = []
+    for symbol, gene in panel.genes.items():
+        span = gene.span(build)
+        if span is None:
+            continue
+        out.append((bare(span.chrom), max(1, span.start - padding), span.end + padding, symbol))
+    out.sort(key=lambda t: (t[0], t[1], t[2]))
+    return out
+
+
+def merge_intervals(intervals: Iterable[tuple]) -> dict[str, list[tuple[int, int]]]:
+    """bare chrom -> sorted, non-overlapping (start, end) list."""
+    by_chrom: dict[str, list[tuple[int, int]]] = {}
+    for chrom, start, end, *_ in intervals:
+        by_chrom.setdefault(bare(chrom), []).append((int(start), int(end)))
+    merged: dict[str, list[tuple[int, int]]] = {}
+    for chrom, spans in by_chrom.items():
+        spans.sort()
+        out: list[list[int]] = []
+        for s, e in spans:
+            if out and s <= out[-1][1] + 1:
+                out[-1][1] = max(out[-1][1], e)
+            else:
+                out.append([s, e])
+        merged[chrom] = [(s, e) for s, e in out]
+    return merged
+
+
+class _Overlap:
+    """Fast 'does [pos, pos+len-1] touch any interval' for one chromosome."""
+
+    __slots__ = ("starts", "ends")
+
+    def __init__(self, spans: list[tuple[int, int]]):
+        self.starts = [s for s, _ in spans]
+        self.ends = [e for _, e in spans]
+
+    def hit(self, pos: int, last: int) -> bool:
+        i = bisect.bisect_right(self.starts, last) - 1
+        return i >= 0 and self.ends[i] >= pos
+
+
+# ---------------------------------------------------------------------------
+# Opening and checking the file
+# ---------------------------------------------------------------------------
+def _sniff(path: str) -> str:
+    """'bgzf', 'gzip', 'bcf' or 'text'; InputError for anything else."""
+    if not os.path.exists(path):
+        raise InputError("file not found", path)
+    if os.path.isdir(path):
+        raise InputError("is a directory, not a VCF file", path)
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(18)
+    except OSError as e:
+        raise InputError(f"cannot read file ({e.strerror})", path)
+    if not head:
+        raise InputError("file is empty", path)
+    if head[:2] == b"\x1f\x8b":
+        is_bgzf = len(head) >= 16 and head[3] & 4 and head[12:14] == b"BC"
+        try:
+            with gzip.open(path, "rb") as fh:
+                magic = fh.read(5)
+        except (OSError, EOFError, zlib.error) as e:
+            raise InputError(f"compressed file cannot be read ({e})", path)
+        if is_bgzf:
+            with open(path, "rb") as fh:
+                fh.seek(max(0, os.path.getsize(path) - len(BGZF_EOF)))
+                if fh.read() != BGZF_EOF:
+                    raise InputError("truncated bgzip file (end-of-file block missing)", path)
+        if magic[:3] == b"BCF":
+            return "bcf"
+        if not magic.startswith(b"#"):
+            raise InputError("not a VCF file (compressed content does not start with a '#' header line)", path)
+        return "bgzf" if is_bgzf else "gzip"
+    if head.startswith(b"BCF"):
+        return "bcf"
+    if not head.startswith(b"#"):
+        raise InputError("not a VCF file (expected a '##fileformat=VCF' header line)", path)
+    return "text"
+
+
+def _open_header(path: str) -> pysam.VariantFile:
+    try:
+        vf = pysam.VariantFile(path)
+    except (ValueError, OSError) as e:
+        raise InputError(f"not a readable VCF/BCF header ({e})", path)
+    return vf
+
+
+def _check_header_text(path: str, kind: str) -> int:
+    """For text VCFs: make sure a #CHROM line ends the header; return the number of header lines."""
+    opener = gzip.open if kind in ("gzip", "bgzf") else open
+    n = 0
+    try:
+        with opener(path, "rb") as fh:
+            for n, line in enumerate(fh, 1):
+                if line.startswith(b"#CHROM"):
+                    return n
+                if not line.startswith(b"##"):
+                    raise InputError("header has no #CHROM line before the first data line", path, n)
+    except (OSError, EOFError, zlib.error) as e:
+        raise InputError(f"compressed file cannot be read ({e})", path)
+    raise InputError("header has no #CHROM line", path, n or None)
+
+
+def _has_index(path: str, vf: pysam.VariantFile) -> bool:
+    try:
+        return vf.index is not None
+    except Exception:
+        return any(os.path.exists(path + ext) for ext in (".tbi", ".csi"))
+
+
+# ---------------------------------------------------------------------------
+# Record -> Variants
+# ---------------------------------------------------------------------------
+def _is_symbolic(alt: Optional[str]) -> bool:
+    return (
+        alt is None or alt in ("*", ".", "") or alt.startswith("<") or "[" in alt or "]" in alt
+        or alt.startswith(".") or alt.endswith(".")
+    )
+
+
+def trim_alleles(pos: int, ref: str, alt: str) -> tuple[int, str, str]:
+    """Drop shared trailing bases, then shared leading bases (keeping >= 1 base each)."""
+    while len(ref) > 1 and len(alt) > 1 and ref[-1] == alt[-1]:
+        ref, alt = ref[:-1], alt[:-1]
+    while len(ref) > 1 and len(alt) > 1 and ref[0] == alt[0]:
+        ref, alt, pos = ref[1:], alt[1:], pos + 1
+    return pos, ref, alt
+
+
+def _zygosity(gt: tuple, chrom_bare: str) -> str:
+    called = [a for a in gt if a is not None]
+    if not called:
+        return "no call"
+    copies = sum(1 for a in called if a == 1)
+    if copies == 0:
+        return "reference"
+    if len(gt) == 1:
+        return "hemizygous" if chrom_bare in ("X", "Y") else "homozygous"
+    if copies == len(gt):
+        return "homozygous"
+    return "heterozygous"
+
+
+def _int_or_none(v) -> Optional[int]:
+    if v is None:
+        return None
+    try:
+        return int(v)
+    except (TypeError, ValueError):
+        return None
+
+
+class _Converter:
+    def __init__(self, header: pysam.VariantHeader, samples: list[str], path: str):
+        self.samples = samples
+        self.path = path
+        self.info_number = {k: header.info[k].number for k in header.info}
+        self.fmt = set(header.formats)
+
+    def convert(self, rec: pysam.VariantRecord, counts: dict, line: Optional[int] = None) -> list[Variant]:
+        counts["records_read"] += 1
+        alts = rec.alts or ()
+        if not alts:
+            return []
+        try:
+            info_items = list(rec.info.items())
+        except (ValueError, OSError) as e:
+            raise InputError(f"malformed INFO ({e})", self.path, line)
+        filters = tuple(rec.filter.keys())
+        per_sample = []
+        for s in self.samples:
+            sd = rec.samples[s]
+            try:
+                gt = sd.get("GT")
+            except (ValueError, OSError, KeyError) as e:
+                raise InputError(f"malformed genotype for sample {s} ({e})", self.path, line)
+            per_sample.append(
+                (
+                    s,
+                    tuple(gt) if gt is not None else (None,),
+                    bool(sd.phased),
+                    _int_or_none(sd.get("PS")) if "PS" in self.fmt else None,
+                    _int_or_none(sd.get("DP")) if "DP" in self.fmt else None,
+                    _int_or_none(sd.get("GQ")) if "GQ" in self.fmt else None,
+                    sd.get("AD") if "AD" in self.fmt else None,
+                )
+            )
+        chrom = rec.chrom
+        cb = bare(chrom)
+        out = []
+        for i, alt in enumerate(alts, 1):
+            if _is_symbolic(alt):
+                counts["symbolic_skipped"] += 1
+                continue
+            counts["alleles"] += 1
+            pos, ref, talt = trim_alleles(rec.pos, rec.ref, alt)
+            info: dict[str, Any] = {}
+            for k, v in info_items:
+                num = self.info_number.get(k)
+                if isinstance(v, tuple):
+                    if num == "A" and len(v) == len(alts):
+                        v = v[i - 1]
+                    elif num == "R" and len(v) == len(alts) + 1:
+                        v = (v[0], v[i])
+                    elif num == "." and k in ("CSQ", "ANN"):
+                        v = ",".join(str(x) for x in v)
+                info[k] = v
+            calls = {}
+            for s, gt, phased, ps, dp, gq, ad in per_sample:
+                rgt = tuple(None if a is None else (1 if a == i else (0 if a == 0 else 2)) for a in gt)
+                ad_ref = ad_alt = None
+                if ad is not None and len(ad) > i:
+                    ad_ref, ad_alt = ad[0], ad[i]
+                calls[s] = Call(
+                    sample=s, gt=rgt, phased=phased and len(gt) > 1, phase_set=ps, dp=dp, gq=gq,
+                    ad_ref=ad_ref, ad_alt=ad_alt, zygosity=_zygosity(rgt, cb),
+                )
+            out.append(
+                Variant(
+                    chrom=chrom, pos=pos, ref=ref, alt=talt, vcf_id=rec.id,
+                    qual=rec.qual, filters=filters, original_pos=rec.pos, original_ref=rec.ref,
+                    original_alts=tuple(alts), allele_index=i, line=line, info=info, calls=calls,
+                )
+            )
+        return out
+
+
+# ---------------------------------------------------------------------------
+# Quality
+# ---------------------------------------------------------------------------
+def _fmt(x: float) -> str:
+    return f"{x:.2f}".rstrip("0").rstrip(".")
+
+
+def quality_flags(variant: Variant, sample: str, thresholds: QualityThresholds = QualityThresholds()) -> tuple[str, ...]:
+    """Why this sample's call at this allele fails the thresholds; () when it passes."""
+    flags: list[str] = []
+    t = thresholds
+    if t.require_pass and variant.filters and tuple(variant.filters) != ("PASS",):
+        flags.append("FILTER=" + ";".join(f for f in variant.filters if f != "PASS"))
+    call = variant.calls.get(sample)
+    if call is None:
+        flags.append(f"sample {sample} not in file")
+        return tuple(flags)
+    if call.zygosity == "no call":
+        flags.append("no genotype call")
+        return tuple(flags)
+    if t.min_dp is not None and call.dp is not None and call.dp < t.min_dp:
+        flags.append(f"DP {call.dp} < {t.min_dp}")
+    if t.min_gq is not None and call.gq is not None and call.gq < t.min_gq:
+        flags.append(f"GQ {call.gq} < {t.min_gq}")
+    ab = call.allele_balance
+    if ab is not None:
+        if call.zygosity == "heterozygous" and t.het_ab_min is not None and t.het_ab_max is not None:
+            if not (t.het_ab_min <= ab <= t.het_ab_max):
+                flags.append(f"allele balance {_fmt(ab)} outside {_fmt(t.het_ab_min)}–{_fmt(t.het_ab_max)}")
+        elif call.zygosity in ("homozygous", "hemizygous") and t.hom_ab_min is not None and ab < t.hom_ab_min:
+            flags.append(f"allele balance {_fmt(ab)} < {_fmt(t.hom_ab_min)} for a {call.zygosity} call")
+    return tuple(flags)
+
+
+# ---------------------------------------------------------------------------
+# Streaming (no index)
+# ---------------------------------------------------------------------------
+_BLOCK = 1 << 22
+
+
+def _raw_blocks(path: str, kind: str) -> Iterator[bytes]:
+    opener = open if kind == "text" else gzip.open
+    with opener(path, "rb") as fh:
+        while True:
+            b = fh.read(_BLOCK)
+            if not b:
+                return
+            yield b
+
+
+def _stream_hits(path: str, kind: str, merged: dict[str, list[tuple[int, int]]], counts: dict) -> tuple[list[bytes], list[int], list[bytes]]:
+    """Return (header lines, line numbers of hits, hit lines); counts records_read for misses."""
+    lookup: dict[bytes, Optional[_Overlap]] = {}
+    for chrom, spans in merged.items():
+        ov = _Overlap(spans)
+        for alias in _aliases(chrom):
+            lookup[alias.encode()] = ov
+    header: list[bytes] = []
+    hits: list[bytes] = []
+    hit_lines: list[int] = []
+    lineno = 0
+    records = 0
+    rest = b""
+    in_header = True
+    last_chrom = None
+    ov = None
+    try:
+        for block in _raw_blocks(path, kind):
+            block = rest + block
+            cut = block.rfind(b"\n")
+            if cut < 0:
+                rest = block
+                continue
+            rest = block[cut + 1:]
+            lines = block[:cut].split(b"\n")
+            base = lineno
+            lineno += len(lines)
+            start = 0
+            if in_header:
+                while start < len(lines) and lines[start].startswith(b"#"):
+                    header.append(lines[start])
+                    start += 1
+                if start < len(lines):
+                    in_header = False
+            for k in range(start, len(lines)):
+                line = lines[k]
+                t1 = line.find(b"\t")
+                if t1 <= 0:
+                    if not line.strip():
+                        continue
+                    raise InputError("malformed data line (no tab-separated CHROM and POS)", path, base + k + 1)
+                records += 1
+                chrom = line[:t1]
+                if chrom != last_chrom:
+                    last_chrom = chrom
+                    ov = lookup.get(chrom)
+                if ov is None:
+                    continue
+                t2 = line.find(b"\t", t1 + 1)
+                try:
+                    pos = int(line[t1 + 1:t2])
+                except ValueError:
+                    raise InputError(f"malformed data line (POS {line[t1 + 1:t2][:20].decode(errors='replace')!r} is not a number)", path, base + k + 1)
+                # last reference base: POS + len(REF) - 1
+                t3 = line.find(b"\t", t2 + 1)
+                t4 = line.find(b"\t", t3 + 1)
+                if t3 < 0 or t4 < 0:
+                    raise InputError("malformed data line (fewer than 8 columns)", path, base + k + 1)
+                if ov.hit(pos, pos + (t4 - t3 - 1) - 1):
+                    hits.append(line)
+                    hit_lines.append(base + k + 1)
+        if rest.strip():
+            lineno += 1
+            line = rest
+            if line.startswith(b"#"):
+                header.append(line)
+            else:
+                records += 1
+                t1 = line.find(b"\t")
+                if t1 <= 0:
+                    raise InputError("malformed data line (no tab-separated CHROM and POS)", path, lineno)
+                ov = lookup.get(line[:t1])
+                if ov is not None:
+                    parts = line.split(b"\t", 5)
+                    if len(parts) < 5:
+                        raise InputError("malformed data line (fewer than 8 columns)", path, lineno)
+                    try:
+                        pos = int(parts[1])
+                    except ValueError:
+                        raise InputError("malformed data line (POS is not a number)", path, lineno)
+                    if ov.hit(pos, pos + len(parts[3]) - 1):
+                        hits.append(line)
+                        hit_lines.append(lineno)
+    except (EOFError, zlib.error, OSError) as e:
+        raise InputError(f"compressed file is truncated or corrupt ({e})", path)
+    counts["records_read"] += records
+    return header, hit_lines, hits
+
+
+def _aliases(bare_chrom: str) -> list[str]:
+    if bare_chrom == "MT":
+        return ["MT", "M", "chrM", "chrMT"]
+    return [bare_chrom, "chr" + bare_chrom]
+
+
+def _file_contig(bare_chrom: str, available: set[str]) -> Optional[str]:
+    for alias in _aliases(bare_chrom):
+        if alias in available:
+            return alias
+    return None
+
+
+# ---------------------------------------------------------------------------
+# The entry point
+# ---------------------------------------------------------------------------
+def read_vcf(
+    path,
+    panel: Panel,
+    *,
+    sample: Optional[str] = None,
+    build: Optional[str] = None,
+    padding: int = 50,
+    quality: QualityThresholds = QualityThresholds(),
+) -> VcfIntake:
+    """Read the panel's variants from a VCF/BCF (indexed: region fetch; otherwise streamed)."""
+    path = str(path)
+    kind = _sniff(path)
+    if kind in ("text", "gzip", "bgzf"):
+        _check_header_text(path, kind)
+    vf = _open_header(path)
+    header = vf.header
+    warnings: list[str] = []
+    samples = list(header.samples)
+    if not samples:
+        raise InputError("VCF has no sample columns (genotypes are needed)", path)
+    if sample is None:
+        if len(samples) > 1:
+            raise InputError(
+                f"VCF has {len(samples)} samples; choose the proband with --sample (one of: {', '.join(samples)})",
+                path,
+            )
+        proband = samples[0]
+    elif sample not in samples:
+        raise InputError(f"sample {sample!r} is not in the VCF (available: {', '.join(samples)})", path)
+    else:
+        proband = sample
+    if "GT" not in header.formats:
+        raise InputError("no GT (genotype) field declared in the FORMAT header", path)
+
+    detected, evidence = explain_build(header, path)
+    use_build = check_build(detected, build, path, evidence)
+    if use_build is None:
+        use_build = "GRCh38"
+        warnings.append(
+            "genome build not stated in the VCF header (no known contig lengths or ##reference); assumed GRCh38 — pass --build to be sure"
+        )
+    style = _chrom_style(header)
+    merged = merge_intervals(panel_intervals(panel, use_build, padding))
+
+    counts = {k: 0 for k in COUNT_KEYS}
+    conv = _Converter(header, samples, path)
+    variants: list[Variant] = []
+    indexed = kind in ("bgzf", "bcf") and _has_index(path, vf)
+    try:
+        if indexed:
+            mode = "indexed"
+            available = set(vf.index.keys()) if vf.index is not None else set(header.contigs)
+            seen: set = set()
+            for chrom in sorted(merged, key=_chrom_order):
+                contig = _file_contig(chrom, available)
+                if contig is None:
+                    continue
+                for start, end in merged[chrom]:
+                    for rec in vf.fetch(contig, start - 1, end):
+                        key = (rec.chrom, rec.pos, rec.ref, rec.alts)
+                        if key in seen:
+                            continue
+                        seen.add(key)
+                        variants.extend(conv.convert(rec, counts))
+        elif kind == "bcf":
+            mode = "streamed (BCF)"
+            lookup = {}
+            for chrom, spans in merged.items():
+                ov = _Overlap(spans)
+                for alias in _aliases(chrom):
+                    lookup[alias] = ov
+            for rec in vf:
+                ov = lookup.get(rec.chrom)
+                if ov is None or not ov.hit(rec.pos, rec.pos + len(rec.ref) - 1):
+                    counts["records_read"] += 1
+                    continue
+                variants.extend(conv.convert(rec, counts))
+        else:
+            mode = "streamed"
+            vf.close()
+            variants = _parse_hits(path, kind, merged, conv, counts)
+    except (ValueError, OSError) as e:
+        if isinstance(e, InputError):
+            raise
+        raise InputError(f"cannot read records ({e})", path)
+    finally:
+        if vf.is_open:
+            vf.close()
+
+    variants.sort(key=lambda v: (_chrom_order(v.chrom_bare), v.original_pos, v.allele_index))
+    counts["in_panel"] = len(variants)
+    for v in variants:
+        call = v.calls.get(proband)
+        if call is None or call.alt_copies == 0:
+            counts["no_alt_in_sample"] += 1
+        elif quality_flags(v, proband, quality):
+            counts["failed_quality"] += 1
+
+    from .consequence.annotations import annotation_layouts
+
+    layouts = annotation_layouts(header)
+    if not layouts:
+        warnings.append(NO_ANNOTATION_HINT)
+    header_info = {
+        "fileformat": _header_value(header, "fileformat"),
+        "reference": _header_value(header, "reference") or _header_value(header, "assembly"),
+        "source": _header_value(header, "source"),
+        "build_detected": detected,
+        "build_evidence": evidence,
+        "access": mode,
+        "annotation_fields": sorted(layouts),
+        "contigs": len(header.contigs),
+    }
+    return VcfIntake(
+        path=path, build=use_build, samples=samples, proband=proband, variants=variants,
+        counts=counts, warnings=warnings, chrom_style=style, header_info=header_info,
+    )
+
+
+def _parse_hits(path: str, kind: str, merged, conv: _Converter, counts: dict) -> list[Variant]:
+    header, hit_lines, hits = _stream_hits(path, kind, merged, counts)
+    counts["records_read"] -= len(hits)  # counted again by the converter
+    if not hits:
+        return []
+    variants: list[Variant] = []
+    with tempfile.TemporaryDirectory(prefix="irdtriage-") as tmp:
+        sub = os.path.join(tmp, "hits.vcf")
+        with open(sub, "wb") as fh:
+            fh.write(b"\n".join(header))
+            fh.write(b"\n")
+            fh.write(b"\n".join(hits))
+            fh.write(b"\n")
+        with pysam.VariantFile(sub) as hvf:
+            it = iter(hvf)
+            for n in hit_lines:
+                try:
+                    rec = next(it)
+                except StopIteration:
+                    raise InputError("malformed data line (could not be parsed)", path, n)
+                except (ValueError, OSError) as e:
+                    raise InputError(f"malformed data line ({e})", path, n)
+                variants.extend(conv.convert(rec, counts, line=n))
+    return variants
+
+
+def _header_value(header: pysam.VariantHeader, key: str) -> Optional[str]:
+    for rec in header.records:
+        if rec.key == key and rec.value:
+            return rec.value
+    return None
+
+
+def _chrom_order(c: str):
+    c = bare(c)
+    if c.isdigit():
+        return (0, int(c), "")
+    return (1, {"X": 23, "Y": 24, "MT": 25}.get(c, 99), c)
