@@ -1,0 +1,308 @@
+"""The `irdtriage` command: argument checking, exit codes, and nothing else.
+
+Exit status: 0 success, 2 bad input (one line on stderr naming file, line and problem),
+1 an unexpected internal error (with a hint to re-run with --debug).
+"""
+from __future__ import annotations
+
+import argparse
+import os
+import shlex
+import sys
+import tempfile
+from pathlib import Path
+from typing import Optional, Sequence
+
+from . import CAUTION, __version__
+from .errors import InputError
+
+FORMATS = ("json", "html", "tsv", "vcf", "phenopacket")
+
+
+def _formats(text: str) -> list[str]:
+    items = [t.strip().lower() for t in text.split(",") if t.strip()]
+    bad = [t for t in items if t not in FORMATS]
+    if bad or not items:
+        raise argparse.ArgumentTypeError(
+            f"unknown format(s) {', '.join(bad) or '(none)'}; choose from {', '.join(FORMATS)}")
+    if "json" not in items:
+        items.insert(0, "json")  # result.json is always written: every other output derives from it
+    return items
+
+
+def _gene_list(text: str) -> list[str]:
+    if text.startswith("@"):
+        path = text[1:]
+        try:
+            lines = Path(path).read_text(encoding="utf-8").splitlines()
+        except OSError as e:
+            raise InputError(f"cannot read gene list: {e.strerror}", path) from None
+        return [g.strip() for line in lines for g in line.split("#")[0].replace(",", " ").split() if g.strip()]
+    return [g.strip() for g in text.split(",") if g.strip()]
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="irdtriage",
+        description="Triage variants in inherited retinal disease genes (decision support only).",
+        epilog=CAUTION,
+    )
+    p.add_argument("--version", action="version", version=f"irdtriage {__version__}")
+    p.add_argument("--debug", action="store_true", help="show a traceback on internal errors")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+
+    def add_panel_opts(sp: argparse.ArgumentParser) -> None:
+        sp.add_argument("--panel", metavar="FILE", help="gene panel YAML (default: the bundled IRD panel)")
+        sp.add_argument("--genes", metavar="LIST", type=str,
+                        help="restrict to these genes: comma-separated symbols or @file (one per line)")
+
+    def add_output_opts(sp: argparse.ArgumentParser, default_out: Optional[str]) -> None:
+        sp.add_argument("--out", metavar="DIR", default=default_out, help=f"output folder (default: {default_out})")
+        sp.add_argument("--formats", type=_formats, default=list(FORMATS), metavar="LIST",
+                        help=f"outputs to write, comma-separated from {','.join(FORMATS)} (default: all)")
+        sp.add_argument("--quiet", "-q", action="store_true", help="print only the case call and cautions")
+        sp.add_argument("--verbose", "-v", action="store_true", help="print every criterion with its reason")
+
+    t = sub.add_parser("triage", help="triage one person's VCF", description="Triage one person's VCF.")
+    t.add_argument("vcf", help="VCF/BCF file (plain, bgzipped, indexed or not)")
+    t.add_argument("--sample", help="the person to triage (required when the VCF has several samples)")
+    t.add_argument("--hpo", help="HPO terms, comma-separated (e.g. HP:0000510,HP:0000662) or @file")
+    t.add_argument("--phenopacket", metavar="FILE", help="GA4GH Phenopacket v2 JSON with HPO features and sex")
+    t.add_argument("--ped", metavar="FILE", help="PED pedigree (relatives genotyped in the same VCF)")
+    t.add_argument("--sex", help="male, female or unknown (overrides the phenopacket/PED)")
+    t.add_argument("--build", choices=("GRCh37", "GRCh38"), help="genome build (default: detected from the header)")
+    add_panel_opts(t)
+    t.add_argument("--rules", metavar="FILE", help="criteria rule set YAML (default: bundled panels/criteria.yaml)")
+    t.add_argument("--curated", metavar="FILE", help="curated evidence (PS3, BS3, PS4, PP5, BP6 ...) YAML/TSV")
+    t.add_argument("--population-vcf", metavar="FILE", help="population-frequency VCF (bgzipped + tabix)")
+    t.add_argument("--clinical-vcf", metavar="FILE", help="clinical-assertion VCF (bgzipped + tabix)")
+    t.add_argument("--scores", metavar="FILE", action="append", default=[],
+                   help="tabix-indexed score table (repeatable)")
+    t.add_argument("--min-dp", type=int, default=None, help="minimum read depth (default 8)")
+    t.add_argument("--min-gq", type=int, default=None, help="minimum genotype quality (default 20)")
+    t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
+    add_output_opts(t, "irdtriage-results")
+
+    d = sub.add_parser("demo", help="run the bundled invented demo family (offline)")
+    add_output_opts(d, "irdtriage-demo")
+
+    pn = sub.add_parser("panel", help="list, show or check the gene panel")
+    pn_sub = pn.add_subparsers(dest="panel_command", metavar="ACTION")
+    pl = pn_sub.add_parser("list", help="one line per gene")
+    add_panel_opts(pl)
+    ps = pn_sub.add_parser("show", help="everything the panel says about one gene")
+    ps.add_argument("gene")
+    add_panel_opts(ps)
+    pc = pn_sub.add_parser("check", help="validate the panel and cascade data")
+    add_panel_opts(pc)
+
+    e = sub.add_parser("explain", help="the full criterion table for one finding")
+    e.add_argument("variant", help="finding id (F1), chrom-pos-ref-alt, or HGVS c./p. text")
+    e.add_argument("--result", metavar="FILE", help="a result.json (default: run the demo)")
+
+    r = sub.add_parser("report", help="re-render outputs from a saved result.json")
+    r.add_argument("result", help="result.json written by triage")
+    r.add_argument("--format", dest="formats", type=_formats, default=None, metavar="LIST",
+                   help=f"formats to write from {','.join(FORMATS)} (default: all)")
+    r.add_argument("--out", metavar="DIR", help="output folder (default: beside the result)")
+    r.add_argument("--phenopacket", metavar="FILE", help="input phenopacket to extend with interpretations")
+    return p
+
+
+def main(argv: Optional[Sequence[str]] = None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not args.command:
+        parser.print_help()
+        return 2
+    try:
+        if args.command == "triage":
+            return cmd_triage(args, argv)
+        if args.command == "demo":
+            return cmd_demo(args, argv)
+        if args.command == "panel":
+            return cmd_panel(args, parser)
+        if args.command == "explain":
+            return cmd_explain(args)
+        if args.command == "report":
+            return cmd_report(args)
+    except InputError as e:
+        print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("irdtriage: interrupted; no output was written", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0
+    except Exception as e:  # pragma: no cover - internal errors
+        if args.debug:
+            raise
+        print(f"irdtriage: internal error: {type(e).__name__}: {e} (re-run with --debug for details)",
+              file=sys.stderr)
+        return 1
+    return 0
+
+
+# ---------------------------------------------------------------------------------------
+def _console():
+    from .report.terminal import make_console
+
+    return make_console()
+
+
+def _quality(args):
+    from .vcf import QualityThresholds
+
+    q = QualityThresholds()
+    if args.min_dp is not None:
+        q.min_dp = args.min_dp
+    if args.min_gq is not None:
+        q.min_gq = args.min_gq
+    if args.allow_filtered:
+        q.require_pass = False
+    return q
+
+
+def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optional[str]) -> dict:
+    from .pipeline import triage
+    from .report.terminal import render_terminal
+    from .report.writers import write_outputs
+
+    result = triage(vcf, **kwargs)
+    pp = None
+    if input_phenopacket_path:
+        import json
+
+        with open(input_phenopacket_path, encoding="utf-8") as fh:
+            pp = json.load(fh)
+    paths = write_outputs(result, args.out, formats=args.formats, input_phenopacket=pp,
+                          cascade_steps=result.get("cascade"))
+    console = _console()
+    render_terminal(result, console, verbose=args.verbose, quiet=args.quiet)
+    if not args.quiet:
+        console.print("Written: " + ", ".join(str(p) for p in paths.values()), soft_wrap=True)
+    return result
+
+
+def cmd_triage(args, argv) -> int:
+    genes = _gene_list(args.genes) if args.genes else None
+    kwargs = dict(
+        sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
+        build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
+        curated_path=args.curated, popfreq_vcf=args.population_vcf, clinical_vcf=args.clinical_vcf,
+        score_tables=args.scores, quality=_quality(args),
+        command="irdtriage " + " ".join(shlex.quote(a) for a in argv),
+    )
+    for label, path in (("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped)):
+        if path and not os.path.exists(path):
+            raise InputError(f"{label} file not found", path)
+    _run_and_write(args.vcf, kwargs, args, args.phenopacket)
+    return 0
+
+
+def cmd_demo(args, argv) -> int:
+    from .demo import demo_inputs
+
+    d = demo_inputs()
+    kwargs = dict(sample=d["sample"], phenopacket=d["phenopacket"], ped=d["ped"],
+                  command="irdtriage " + " ".join(shlex.quote(a) for a in argv))
+    _run_and_write(d["vcf"], kwargs, args, d["phenopacket"])
+    return 0
+
+
+def cmd_panel(args, parser) -> int:
+    from rich.table import Table
+
+    from .panel import check_panel, load_panel
+
+    if not args.panel_command:
+        parser.parse_args(["panel", "--help"])
+        return 2
+    genes = _gene_list(args.genes) if getattr(args, "genes", None) else None
+    panel = load_panel(args.panel, genes=genes)
+    console = _console()
+    if args.panel_command == "list":
+        table = Table(title=f"{panel.name} {panel.version}: {len(panel.genes)} genes", show_lines=False)
+        for col in ("gene", "inheritance", "mechanism", "cascade step", "conditions"):
+            table.add_column(col, overflow="fold")
+        for g in panel.genes.values():
+            step = panel.cascade.get(g.cascade_step)
+            table.add_row(g.symbol, ",".join(g.inheritance), ",".join(g.mechanisms),
+                          step.title if step else g.cascade_step, "; ".join(g.conditions[:2]))
+        console.print(table)
+        return 0
+    if args.panel_command == "show":
+        sym = args.gene.upper()
+        if sym not in panel.genes:
+            raise InputError(f"gene {args.gene!r} is not on panel {panel.name} {panel.version}", panel.source)
+        from .cascade import explain
+
+        g = panel.genes[sym]
+        rows = [
+            ("symbol", g.symbol), ("HGNC", g.hgnc_id), ("name", g.name),
+            ("MANE Select", f"{g.refseq_transcript} / {g.ensembl_transcript} ({g.refseq_protein})"),
+            ("GRCh38", f"chr{g.grch38.chrom}:{g.grch38.start:,}-{g.grch38.end:,} ({g.strand})"),
+            ("GRCh37", f"chr{g.grch37.chrom}:{g.grch37.start:,}-{g.grch37.end:,}" if g.grch37 else "not given"),
+            ("inheritance", ", ".join(g.inheritance)), ("mechanism", ", ".join(g.mechanisms)),
+            ("conditions", "; ".join(g.conditions)), ("syndromic", "yes" if g.syndromic else "no"),
+            ("cascade step", g.cascade_step), ("biology", explain(panel, sym)),
+        ] + [("note", n) for n in g.notes]
+        t = Table(show_header=False, title=f"{g.symbol} on {panel.name} {panel.version}")
+        t.add_column("field", style="bold")
+        t.add_column("value", overflow="fold")
+        for k, v in rows:
+            t.add_row(k, v)
+        console.print(t)
+        return 0
+    if args.panel_command == "check":
+        problems = check_panel(panel)
+        if problems:
+            for pr in problems:
+                print(f"irdtriage: panel problem: {pr}", file=sys.stderr)
+            return 2
+        console.print(f"{panel.name} {panel.version}: {len(panel.genes)} genes, {len(panel.cascade)} cascade "
+                      f"steps, sha256 {panel.sha256[:12]}: OK")
+        return 0
+    return 2
+
+
+def cmd_explain(args) -> int:
+    from .explain import find_finding, render_explain
+    from .report.json_out import load_result
+
+    if args.result:
+        result = load_result(args.result)
+    else:
+        from .demo import demo_inputs
+        from .pipeline import triage
+
+        d = demo_inputs()
+        result = triage(d["vcf"], sample=d["sample"], phenopacket=d["phenopacket"], ped=d["ped"])
+    finding = find_finding(result, args.variant)
+    render_explain(result, finding, _console())
+    return 0
+
+
+def cmd_report(args) -> int:
+    import json
+
+    from .report.json_out import load_result
+    from .report.writers import write_outputs
+
+    result = load_result(args.result)
+    out = args.out or str(Path(args.result).resolve().parent)
+    formats = args.formats or list(FORMATS)
+    if "json" in formats and Path(out).resolve() == Path(args.result).resolve().parent:
+        formats = [f for f in formats if f != "json"]  # never rewrite the source in place
+    pp = None
+    if args.phenopacket:
+        with open(args.phenopacket, encoding="utf-8") as fh:
+            pp = json.load(fh)
+    paths = write_outputs(result, out, formats=formats, input_phenopacket=pp, cascade_steps=result.get("cascade"))
+    print("Written: " + ", ".join(str(p) for p in paths.values()))
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

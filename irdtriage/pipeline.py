@@ -1,0 +1,267 @@
+"""The main job, one case end to end: VCF in, result dict out.
+
+Each stage is a function from another module; this module only wires them together
+in the documented order (see DEVELOPERS.md, "Data flow"):
+
+1. panel            irdtriage.panel.load_panel
+2. phenotype input  irdtriage.phenopacket_in / --hpo
+3. family input     irdtriage.pedigree.read_ped
+4. VCF intake       irdtriage.vcf.read_vcf (region fetch or streaming prefilter)
+5. findings         consequence from INFO annotation, quality flags
+6. evidence         irdtriage.evidence.collect_evidence
+7. phenotype match  irdtriage.phenotype.PhenotypeMatcher (+ PP4)
+8. ACMG pass 1      irdtriage.acmg.engine.evaluate + combine (no family criteria)
+9. family criteria  irdtriage.family_criteria (PM3, BP2, PS2/PM6, PP1/BS4) from pass-1 classes
+10. ACMG pass 2     with family and phenotype criteria
+11. genotype fit    irdtriage.genotype.assess_gene per gene
+12. ranking         irdtriage.rank (score, reason, case call, interpretation statuses)
+13. result dict     irdtriage.result.build_result
+"""
+from __future__ import annotations
+
+import datetime as _dt
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Iterable, Optional, Sequence
+
+from . import models
+from .errors import InputError
+
+
+@dataclass
+class TriageOptions:
+    sample: Optional[str] = None
+    hpo: Optional[Sequence[str] | str] = None
+    phenopacket: Optional[str] = None
+    ped: Optional[str] = None
+    sex: Optional[str] = None  # "MALE" / "FEMALE" / None
+    build: Optional[str] = None
+    panel_path: Optional[str] = None
+    genes: Optional[Sequence[str]] = None
+    rules_path: Optional[str] = None
+    curated_path: Optional[str] = None
+    popfreq_vcf: Optional[str] = None
+    clinical_vcf: Optional[str] = None
+    score_tables: Sequence[str] = ()
+    padding: int = 50
+    quality: Any = None  # irdtriage.vcf.QualityThresholds
+    command: str = ""
+    phenotype_matcher: Any = None  # reuse a loaded matcher across cases (benchmarks)
+    extra_warnings: list[str] = field(default_factory=list)
+
+
+def normalise_sex(value: Optional[str], where: str = "--sex") -> Optional[str]:
+    if value is None:
+        return None
+    v = str(value).strip().upper()
+    table = {"M": "MALE", "MALE": "MALE", "1": "MALE", "F": "FEMALE", "FEMALE": "FEMALE", "2": "FEMALE",
+             "U": None, "UNKNOWN": None, "UNKNOWN_SEX": None, "0": None, "OTHER_SEX": None}
+    if v not in table:
+        raise InputError(f"sex must be male, female or unknown, got {value!r}", where)
+    return table[v]
+
+
+def triage(vcf_path: str | Path, **kwargs: Any) -> dict[str, Any]:
+    """Run the whole triage on one VCF and return the result dict (see docs/result-contract.md)."""
+    opts = TriageOptions(**kwargs)
+    return run(str(vcf_path), opts)
+
+
+def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
+    from . import result as result_mod
+    from .acmg import engine as acmg_engine
+    from .acmg.combine import combine
+    from .acmg.rules import load_rules
+    from .consequence.annotations import annotation_layouts, pick_annotation
+    from .evidence import EvidenceConfig, EvidenceSources, collect_evidence
+    from .panel import GeneLocator, load_panel
+    from .vcf import QualityThresholds, quality_flags, read_vcf
+
+    started = _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat().replace("+00:00", "Z")
+    warnings: list[str] = list(opts.extra_warnings)
+
+    # 1. panel and rules ------------------------------------------------------------
+    panel = load_panel(opts.panel_path, genes=opts.genes)
+    rules = load_rules(opts.rules_path)
+
+    # 2. phenotype input ------------------------------------------------------------
+    profile = _phenotype_profile(opts)
+    stated_sex = normalise_sex(opts.sex) if opts.sex is not None else profile.sex
+
+    # 3. family ---------------------------------------------------------------------
+    pedigree = None
+    if opts.ped:
+        from .pedigree import read_ped
+
+        pedigree = read_ped(opts.ped)
+
+    # 4. VCF intake -----------------------------------------------------------------
+    quality = opts.quality or QualityThresholds()
+    intake = read_vcf(vcf_path, panel, sample=opts.sample or profile_sample(profile, pedigree, vcf_path),
+                      build=opts.build, padding=opts.padding, quality=quality)
+    warnings.extend(intake.warnings)
+    proband = intake.proband
+    mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples, vcf_path)
+    if stated_sex is None and ped_sex is not None:
+        stated_sex = ped_sex
+        sex_source = "ped"
+    else:
+        sex_source = "stated" if opts.sex is not None else ("phenopacket" if profile.sex else "unknown")
+
+    from .genotype import infer_sex
+
+    sex_inf = infer_sex(intake.variants, proband, stated=stated_sex)
+    if getattr(sex_inf, "warning", None):
+        warnings.append(sex_inf.warning)
+    sex = stated_sex or sex_inf.sex
+    if stated_sex is None and sex_inf.sex is not None:
+        sex_source = "inferred"
+
+    # 5. findings -------------------------------------------------------------------
+    layouts = annotation_layouts(intake.header) if getattr(intake, "header", None) is not None else \
+        intake.header_info.get("annotation_layouts", {})
+    locator = GeneLocator(panel, intake.build, opts.padding)
+    findings: list[models.Finding] = []
+    for variant in intake.variants:
+        call = variant.calls.get(proband)
+        if call is None or call.alt_copies == 0:
+            continue
+        genes_here = locator.genes_at(variant.chrom, variant.pos, variant.pos + max(len(variant.ref), 1) - 1)
+        if not genes_here:
+            continue
+        annotation = pick_annotation(variant, layouts, panel, genes_here)
+        gene_symbol = annotation.gene if annotation.gene in panel.genes else genes_here[0]
+        if annotation.gene != gene_symbol:
+            annotation.gene = gene_symbol
+        findings.append(models.Finding(
+            id=f"F{len(findings) + 1}",
+            variant=variant,
+            gene=gene_symbol,
+            annotation=annotation,
+            quality_flags=tuple(quality_flags(variant, proband, quality)),
+        ))
+
+    # 6. evidence -------------------------------------------------------------------
+    ev_config = EvidenceConfig()
+    sources = EvidenceSources.open(popfreq_vcf=opts.popfreq_vcf, clinical_vcf=opts.clinical_vcf,
+                                   score_tables=list(opts.score_tables or ()), build=intake.build)
+    try:
+        for f in findings:
+            f.evidence = collect_evidence(f.variant, f.annotation, ev_config, sources)
+    finally:
+        sources.close()
+
+    curated: dict[str, list[models.CriterionResult]] = {}
+    if opts.curated_path:
+        from .curated import load_curated
+
+        curated = load_curated(opts.curated_path)
+
+    # 7. phenotype match ------------------------------------------------------------
+    matches: dict[str, models.PhenotypeMatch] = {}
+    retinal = None
+    matcher = None
+    if profile.present or profile.excluded:
+        from .phenotype import PhenotypeMatcher
+
+        matcher = opts.phenotype_matcher or PhenotypeMatcher(panel.genes.keys())
+        matches = matcher.match(profile)
+        retinal = matcher.retinal_fit(profile)
+
+    def pheno_criteria(f: models.Finding) -> list[models.CriterionResult]:
+        if matcher is None:
+            return []
+        m = matches.get(f.gene)
+        return [matcher.pp4(m, panel.genes[f.gene])] if m is not None else []
+
+    # 8. ACMG pass 1 ----------------------------------------------------------------
+    def classify(f: models.Finding, extra: list[models.CriterionResult]) -> None:
+        gene = panel.genes[f.gene]
+        f.criteria = acmg_engine.evaluate(f, gene, rules, extra=extra,
+                                          curated=curated.get(f.variant.key, []))
+        f.classification = combine(f.criteria)
+
+    for f in findings:
+        classify(f, pheno_criteria(f))
+
+    # 9-10. family criteria, ACMG pass 2 -------------------------------------------
+    from .family_criteria import family_criteria
+
+    by_gene: dict[str, list[models.Finding]] = {}
+    for f in findings:
+        by_gene.setdefault(f.gene, []).append(f)
+    for symbol, gene_findings in by_gene.items():
+        fam = family_criteria(panel.genes[symbol], gene_findings, proband, sex, pedigree=pedigree,
+                              mother=mother, father=father)
+        for f in gene_findings:
+            classify(f, pheno_criteria(f) + list(fam.get(f.id, [])))
+
+    # 11. genotype fit per gene -----------------------------------------------------
+    from .genotype import assess_gene
+    from .rank import assign_interpretation_status, case_call, rank_hypotheses
+
+    hypotheses: list[models.GeneHypothesis] = []
+    for symbol, gene_findings in by_gene.items():
+        assessment = assess_gene(panel.genes[symbol], gene_findings, proband, sex, mother=mother, father=father)
+        h = models.GeneHypothesis(symbol=symbol, findings=gene_findings, genotype_fit=assessment.fit,
+                                  phase=assessment.phase, phenotype_match=matches.get(symbol))
+        h.next_steps = list(getattr(assessment, "notes", []) or [])
+        h.assessment = assessment  # type: ignore[attr-defined]
+        hypotheses.append(h)
+
+    # 12. ranking and case call -----------------------------------------------------
+    ranked = rank_hypotheses(hypotheses, panel)
+    fits_retina = None if retinal is None else bool(retinal[0])
+    call = case_call(ranked, fits_retina)
+    assign_interpretation_status(ranked, call)
+
+    # 13. result ----------------------------------------------------------------------
+    return result_mod.build_result(
+        vcf_path=vcf_path, opts=opts, started=started, panel=panel, rules=rules, intake=intake,
+        proband=proband, sex=sex, sex_source=sex_source, inferred_sex=sex_inf.sex,
+        mother=mother, father=father, affected=affected, profile=profile, retinal=retinal,
+        findings=findings, ranked=ranked, call=call, warnings=warnings,
+    )
+
+
+def profile_sample(profile: models.PhenotypeProfile, pedigree: Any, vcf_path: str) -> Optional[str]:
+    """No --sample given: nothing to guess from here (read_vcf decides or asks)."""
+    return None
+
+
+def _phenotype_profile(opts: TriageOptions) -> models.PhenotypeProfile:
+    present: list[str] = []
+    excluded: list[str] = []
+    sex = None
+    subject = None
+    source = []
+    labels: dict[str, str] = {}
+    if opts.phenopacket:
+        from .phenopacket_in import read_phenopacket
+
+        p = read_phenopacket(opts.phenopacket)
+        present += list(p.present)
+        excluded += list(p.excluded)
+        sex, subject = p.sex, p.subject_id
+        labels.update(p.labels)
+        source.append(str(opts.phenopacket))
+    if opts.hpo:
+        from .phenopacket_in import parse_hpo_terms
+
+        terms = parse_hpo_terms(opts.hpo)
+        present += [t for t in terms if t not in present]
+        source.append("--hpo")
+    return models.PhenotypeProfile(present=tuple(present), excluded=tuple(excluded), sex=sex,
+                                   subject_id=subject, source=", ".join(source), labels=labels)
+
+
+def _relatives(pedigree: Any, proband: str, samples: Iterable[str], vcf_path: str):
+    if pedigree is None:
+        return None, None, None, None
+    from .pedigree import trio_from_ped
+
+    mother, father = trio_from_ped(pedigree, proband, list(samples))
+    person = pedigree.individuals.get(proband) if hasattr(pedigree, "individuals") else None
+    sex = getattr(person, "sex", None) if person is not None else None
+    affected = getattr(person, "affected", None) if person is not None else None
+    return mother, father, sex, affected

@@ -1,0 +1,212 @@
+"""Turn the pipeline's dataclasses into the result dict (docs/result-contract.md).
+
+Pure formatting of data into plain JSON types; no I/O except hashing the input files.
+"""
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+from typing import Any, Optional
+
+from . import CAUTION, __version__, models
+
+SCHEMA_VERSION = "1.0"
+
+CAUTIONS = [
+    CAUTION,
+    "Population frequency, clinical assertions and in-silico scores are only as complete as the "
+    "sources given to this run; criteria without data are reported as not evaluable, not as absent.",
+    "Copy-number changes, deep-intronic and repeat-region variants and regions of low coverage "
+    "may be missed by a variant file; a negative result does not exclude a genetic diagnosis.",
+]
+
+
+def sha256_file(path: str | Path, chunk: int = 1 << 20) -> Optional[str]:
+    h = hashlib.sha256()
+    try:
+        with open(path, "rb") as fh:
+            while True:
+                block = fh.read(chunk)
+                if not block:
+                    break
+                h.update(block)
+    except OSError:
+        return None
+    return h.hexdigest()
+
+
+def genotype_string(call: Optional[models.Call]) -> str:
+    if call is None:
+        return "./."
+    sep = "|" if call.phased else "/"
+    return sep.join("." if a is None else str(a) for a in call.gt) or "."
+
+
+def _round(x: Any, n: int = 4) -> Any:
+    return round(x, n) if isinstance(x, float) else x
+
+
+def cascade_dict(step: Optional[models.CascadeStep]) -> Optional[dict[str, Any]]:
+    if step is None:
+        return None
+    return {"id": step.id, "title": step.title, "kind": step.kind, "order": step.order,
+            "text": step.text, "breaks": step.breaks}
+
+
+def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> dict[str, Any]:
+    v = f.variant
+    call = v.calls.get(proband)
+    c = f.classification
+    family = {}
+    for role, sid in relatives.items():
+        rc = v.calls.get(sid)
+        if rc is not None:
+            family[sid] = {"role": role, "genotype": genotype_string(rc), "zygosity": rc.zygosity,
+                           "dp": rc.dp, "gq": rc.gq}
+    return {
+        "id": f.id,
+        "chrom": v.chrom,
+        "pos": v.pos,
+        "ref": v.ref,
+        "alt": v.alt,
+        "key": v.key,
+        "original": {"pos": v.original_pos or v.pos, "ref": v.original_ref or v.ref,
+                     "alts": list(v.original_alts or (v.alt,)), "allele_index": v.allele_index},
+        "vcf_id": v.vcf_id,
+        "qual": v.qual,
+        "gene": f.gene,
+        "transcript": f.annotation.transcript,
+        "is_mane": f.annotation.is_mane,
+        "hgvs_c": f.annotation.hgvs_c,
+        "hgvs_p": f.annotation.hgvs_p,
+        "consequence": list(f.annotation.consequence),
+        "exon": f.annotation.exon,
+        "intron": f.annotation.intron,
+        "annotation_source": f.annotation.source,
+        "protein_position": f.annotation.extra.get("Protein_position") or f.annotation.extra.get("protein_position"),
+        "zygosity": call.zygosity if call else "no call",
+        "genotype": genotype_string(call),
+        "phased": bool(call.phased) if call else False,
+        "phase_set": call.phase_set if call else None,
+        "dp": call.dp if call else None,
+        "gq": call.gq if call else None,
+        "allele_balance": _round(call.allele_balance) if call else None,
+        "filters": list(v.filters) or ["PASS"],
+        "quality_flags": list(f.quality_flags),
+        "family": family,
+        "evidence": _jsonable(f.evidence),
+        "classification": c.classification if c else None,
+        "rule_class": c.rule_class if c else None,
+        "rule": c.rule if c else None,
+        "points": c.points if c else None,
+        "point_class": c.point_class if c else None,
+        "posterior": _round(c.posterior, 6) if c else None,
+        "bayes_class": c.bayes_class if c else None,
+        "classification_note": c.note if c else "",
+        "criteria": [_jsonable(cr.to_dict()) for cr in f.criteria],
+        "met_criteria": [f"{cr.code}" + ("" if not cr.strength else f"_{cr.strength}")
+                         for cr in f.criteria if cr.met],
+        "interpretation_status": f.interpretation_status,
+    }
+
+
+def _jsonable(x: Any) -> Any:
+    if isinstance(x, dict):
+        return {str(k): _jsonable(v) for k, v in x.items()}
+    if isinstance(x, (list, tuple, set)):
+        return [_jsonable(v) for v in x]
+    if isinstance(x, float):
+        return x if x == x and x not in (float("inf"), float("-inf")) else None
+    if isinstance(x, (str, int, bool)) or x is None:
+        return x
+    if hasattr(x, "__dataclass_fields__"):
+        from dataclasses import asdict
+
+        return _jsonable(asdict(x))
+    return str(x)
+
+
+CLASS_ORDER = {c: i for i, c in enumerate(models.CLASSES)}
+
+
+def gene_dict(h: models.GeneHypothesis, panel: models.Panel) -> dict[str, Any]:
+    gene = panel.genes[h.symbol]
+    step = panel.cascade.get(gene.cascade_step)
+    classes = [f.classification.classification for f in h.findings if f.classification]
+    strongest = min(classes, key=lambda c: CLASS_ORDER[c]) if classes else None
+    pm = h.phenotype_match
+    return {
+        "rank": h.rank,
+        "symbol": gene.symbol,
+        "hgnc_id": gene.hgnc_id,
+        "name": gene.name,
+        "transcript": gene.refseq_transcript,
+        "inheritance": list(gene.inheritance),
+        "mechanisms": list(gene.mechanisms),
+        "conditions": list(gene.conditions),
+        "cascade_step": cascade_dict(step),
+        "findings": [f.id for f in h.findings],
+        "genotype_fit": h.genotype_fit,
+        "phase": h.phase,
+        "phenotype_match": None if pm is None else {
+            "score": _round(pm.score), "calibrated": _round(pm.calibrated),
+            "matched_terms": _jsonable(pm.matched_terms), "conflicting_terms": list(pm.conflicting_terms),
+            "summary": pm.summary},
+        "strongest_class": strongest,
+        "score": _round(h.score),
+        "reason": h.reason,
+        "next_steps": list(h.next_steps),
+        "notes": list(gene.notes),
+    }
+
+
+def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,
+                 mother, father, affected, profile, retinal, findings, ranked, call, warnings) -> dict[str, Any]:
+    inputs = [{"role": "vcf", "path": str(vcf_path), "sha256": sha256_file(vcf_path)}]
+    for role, p in (("ped", opts.ped), ("phenopacket", opts.phenopacket), ("panel", opts.panel_path),
+                    ("rules", opts.rules_path), ("curated", opts.curated_path),
+                    ("population_vcf", opts.popfreq_vcf), ("clinical_vcf", opts.clinical_vcf)):
+        if p:
+            inputs.append({"role": role, "path": str(p), "sha256": sha256_file(p)})
+    for p in opts.score_tables or ():
+        inputs.append({"role": "scores", "path": str(p), "sha256": sha256_file(p)})
+
+    relatives = {k: v for k, v in (("mother", mother), ("father", father)) if v}
+    labels = dict(profile.labels)
+    if profile.present or profile.excluded:
+        try:
+            from .phenotype import term_labels
+
+            labels.update(term_labels(list(profile.present) + list(profile.excluded)))
+        except Exception:  # labels are cosmetic; never fail a run on them
+            pass
+    ordered_findings = [f for h in ranked for f in h.findings]
+    counts = dict(intake.counts)
+    counts["findings"] = len(findings)
+    return {
+        "schema_version": SCHEMA_VERSION,
+        "tool": {"name": "irdtriage", "version": __version__},
+        "run": {"started": started, "command": opts.command, "inputs": inputs},
+        "panel": {"name": panel.name, "version": panel.version, "sha256": panel.sha256,
+                  "genes": len(panel.genes), "subset": list(opts.genes) if opts.genes else None},
+        "rules": {"name": getattr(rules, "name", "criteria"), "version": getattr(rules, "version", ""),
+                  "sha256": getattr(rules, "sha256", "")},
+        "genome_build": intake.build,
+        "sample": {"id": proband, "sex": sex, "sex_source": sex_source, "inferred_sex": inferred_sex,
+                   "mother": mother, "father": father, "affected": affected,
+                   "vcf_samples": list(intake.samples)},
+        "phenotype": {
+            "source": profile.source or None,
+            "present": [{"id": t, "label": labels.get(t, "")} for t in profile.present],
+            "excluded": [{"id": t, "label": labels.get(t, "")} for t in profile.excluded],
+            "retinal_fit": None if retinal is None else
+            {"fits": bool(retinal[0]), "score": _round(float(retinal[1])), "summary": retinal[2]},
+        },
+        "case": {"status": call.status, "summary": call.summary, "next_steps": list(call.next_steps)},
+        "cascade": [cascade_dict(s) for s in panel.cascade.values()],
+        "genes": [gene_dict(h, panel) for h in ranked],
+        "findings": [finding_dict(f, proband, relatives) for f in ordered_findings],
+        "counts": counts,
+        "warnings": list(dict.fromkeys(warnings)),
+        "cautions": list(CAUTIONS),
+    }
