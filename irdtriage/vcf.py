@@ -175,15 +175,17 @@ def _open_header(path: str) -> pysam.VariantFile:
     return vf
 
 
-def _check_header_text(path: str, kind: str) -> int:
-    """For text VCFs: make sure a #CHROM line ends the header; return the number of header lines."""
+def _check_header_text(path: str, kind: str) -> list[bytes]:
+    """For text VCFs: make sure a #CHROM line ends the header; return the header lines."""
     opener = gzip.open if kind in ("gzip", "bgzf") else open
     n = 0
+    lines: list[bytes] = []
     try:
         with opener(path, "rb") as fh:
             for n, line in enumerate(fh, 1):
+                lines.append(line)
                 if line.startswith(b"#CHROM"):
-                    return n
+                    return lines
                 if not line.startswith(b"##"):
                     raise InputError("header has no #CHROM line before the first data line", path, n)
     except (OSError, EOFError, zlib.error) as e:
@@ -340,7 +342,8 @@ def quality_flags(variant: Variant, sample: str, thresholds: QualityThresholds =
     if t.min_gq is not None and call.gq is not None and call.gq < t.min_gq:
         flags.append(f"GQ {call.gq} < {t.min_gq}")
     ab = call.allele_balance
-    if ab is not None:
+    # ref/alt balance means nothing when the other allele is a different ALT (GT 1/2)
+    if ab is not None and 2 not in call.gt:
         if call.zygosity == "heterozygous" and t.het_ab_min is not None and t.het_ab_max is not None:
             if not (t.het_ab_min <= ab <= t.het_ab_max):
                 flags.append(f"allele balance {_fmt(ab)} outside {_fmt(t.het_ab_min)}–{_fmt(t.het_ab_max)}")
@@ -483,8 +486,16 @@ def read_vcf(
     path = str(path)
     kind = _sniff(path)
     if kind in ("text", "gzip", "bgzf"):
-        _check_header_text(path, kind)
-    vf = _open_header(path)
+        header_lines = _check_header_text(path, kind)
+    if kind == "gzip":
+        # ordinary (non-blocked) gzip: htslib cannot open it, so parse the header alone
+        with tempfile.TemporaryDirectory(prefix="irdtriage-") as tmp:
+            hpath = os.path.join(tmp, "header.vcf")
+            with open(hpath, "wb") as fh:
+                fh.write(b"".join(header_lines))
+            vf = _open_header(hpath)
+    else:
+        vf = _open_header(path)
     header = vf.header
     warnings: list[str] = []
     samples = list(header.samples)
@@ -549,7 +560,6 @@ def read_vcf(
                 variants.extend(conv.convert(rec, counts))
         else:
             mode = "streamed"
-            vf.close()
             variants = _parse_hits(path, kind, merged, conv, counts)
     except (ValueError, OSError) as e:
         if isinstance(e, InputError):
