@@ -1,0 +1,118 @@
+"""Small helpers shared by the output writers (pure functions over the result dict)."""
+from __future__ import annotations
+
+from typing import Any, Iterable, Optional
+
+from irdtriage import CAUTION
+
+STRENGTH_ABBR = {"Supporting": "Sup", "Moderate": "Mod", "Strong": "Str", "VeryStrong": "VStr", "StandAlone": "SA"}
+
+# The strength each code carries when applied at its default level (Richards et al. 2015, Tables 3-4).
+DEFAULT_STRENGTH = {
+    "PVS1": "VeryStrong", "BA1": "StandAlone",
+    **{c: "Strong" for c in ("PS1", "PS2", "PS3", "PS4", "BS1", "BS2", "BS3", "BS4")},
+    **{c: "Moderate" for c in ("PM1", "PM2", "PM3", "PM4", "PM5", "PM6")},
+    **{c: "Supporting" for c in ("PP1", "PP2", "PP3", "PP4", "PP5",
+                                  "BP1", "BP2", "BP3", "BP4", "BP5", "BP6", "BP7")},
+}
+
+CLASS_SHORT = {
+    "Pathogenic": "P", "Likely pathogenic": "LP", "Uncertain significance": "VUS",
+    "Likely benign": "LB", "Benign": "B",
+}
+
+
+def cautions(result: dict) -> list[str]:
+    """The result's cautions, always including irdtriage.CAUTION first."""
+    out = [CAUTION]
+    for c in result.get("cautions") or []:
+        if c and c not in out:
+            out.append(c)
+    return out
+
+
+def met_criteria(finding: dict) -> list[dict]:
+    return [c for c in finding.get("criteria") or [] if c.get("met") is True]
+
+
+def criterion_label(c: dict) -> str:
+    """Compact form: the code alone at its default strength, else code(Abbr): 'PM2(Sup)'."""
+    code = c.get("code", "?")
+    s = c.get("strength")
+    if not s or s == DEFAULT_STRENGTH.get(code):
+        return code
+    return f"{code}({STRENGTH_ABBR.get(s, s)})"
+
+
+def criteria_compact(finding: dict) -> str:
+    return " ".join(criterion_label(c) for c in met_criteria(finding)) or "none met"
+
+
+def findings_by_id(result: dict) -> dict[str, dict]:
+    return {f.get("id"): f for f in result.get("findings") or []}
+
+
+def gene_findings(result: dict, gene: dict) -> list[dict]:
+    by_id = findings_by_id(result)
+    return [by_id[i] for i in gene.get("findings") or [] if i in by_id]
+
+
+def cascade_steps(result: dict, cascade_steps: Optional[Iterable[dict]] = None) -> list[dict]:
+    """All known cascade steps: the given list, else result['cascade'], plus any step a gene carries."""
+    steps: list[dict] = []
+    seen: set[str] = set()
+    sources: list[Iterable[dict]] = []
+    if cascade_steps:
+        sources.append(cascade_steps)
+    if result.get("cascade"):
+        sources.append(result["cascade"])
+    sources.append([g.get("cascade_step") for g in result.get("genes") or [] if g.get("cascade_step")])
+    for src in sources:
+        for s in src:
+            if s and s.get("id") and s["id"] not in seen:
+                seen.add(s["id"])
+                steps.append(dict(s))
+    return steps
+
+
+def chain(steps: list[dict]) -> list[dict]:
+    ch = [s for s in steps if s.get("kind") == "chain"]
+    return sorted(ch, key=lambda s: (s.get("order") is None, s.get("order") or 0))
+
+
+def affected_steps(result: dict, top: int = 3) -> dict[str, list[str]]:
+    """Step id -> gene symbols, for the top-ranked genes with a qualifying finding."""
+    out: dict[str, list[str]] = {}
+    for g in (result.get("genes") or [])[:top]:
+        st = g.get("cascade_step") or {}
+        if st.get("id") and g.get("genotype_fit") != "no qualifying finding":
+            out.setdefault(st["id"], []).append(g.get("symbol", "?"))
+    return out
+
+
+def protein_position(finding: dict) -> Optional[int]:
+    """First amino-acid position in hgvs_p ('p.(Arg34Ter)', 'p.R34*', 'p.Thr84fs'), else evidence['protein_position']."""
+    import re
+
+    p = finding.get("hgvs_p") or ""
+    m = re.search(r"p\.\(?[A-Za-z*]{1,3}(\d+)", p)
+    if m:
+        return int(m.group(1))
+    ev = finding.get("evidence") or {}
+    for key in ("protein_position", "protein_pos"):
+        v = ev.get(key)
+        if isinstance(v, int):
+            return v
+        if isinstance(v, str) and v.split("-")[0].isdigit():
+            return int(v.split("-")[0])
+    return None
+
+
+def fmt(v: Any, none: str = "—") -> str:
+    if v is None or v == "" or v == []:
+        return none
+    if isinstance(v, float):
+        return f"{v:.3g}"
+    if isinstance(v, (list, tuple)):
+        return ", ".join(str(x) for x in v)
+    return str(v)
