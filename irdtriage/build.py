@@ -29,8 +29,8 @@ CONTIG_LENGTHS: dict[str, dict[str, int]] = {
 # Names found in ##reference / ##assembly lines (file names or assembly names), matched
 # case-insensitively as whole tokens.  Common practice naming of the two builds.
 _NAME_PATTERNS = (
-    ("GRCh38", re.compile(r"(?<![a-z0-9])(grch38|hg38|b38|hs38(dh)?|gca_000001405\.(1[5-9]|2\d)|gcf_000001405\.(2[6-9]|3\d|4\d))(?![0-9])", re.I)),
-    ("GRCh37", re.compile(r"(?<![a-z0-9])(grch37|hg19|b37|hs37d5|hs37|human_g1k_v37|gca_000001405\.([1-9]|1[0-4])|gcf_000001405\.(1\d|2[0-5]))(?![0-9])", re.I)),
+    ("GRCh38", re.compile(r"(?<![a-z0-9])(grch38|hg38|b38|homo_sapiens_assembly38|hs38(dh)?|gca_000001405\.(1[5-9]|2\d)|gcf_000001405\.(2[6-9]|3\d|4\d))(?![0-9])", re.I)),
+    ("GRCh37", re.compile(r"(?<![a-z0-9])(grch37|hg19|b37|homo_sapiens_assembly19|hs37d5|hs37|human_g1k_v37|gca_000001405\.([1-9]|1[0-4])|gcf_000001405\.(1\d|2[0-5]))(?![0-9])", re.I)),
 )
 
 
