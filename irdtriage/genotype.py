@@ -1,0 +1,553 @@
+"""Genotype reasoning for one person: sex check, phase, de novo status and genotype fit per gene.
+
+Everything here reads :class:`~irdtriage.models.Call` objects (one per sample per split
+allele: ``gt`` 0 = reference, 1 = this allele, 2 = another allele, None = missing) and
+returns plain dataclasses with a reason for every verdict.
+
+Rules used (common practice: Mendelian inheritance, no sources beyond textbook genetics)
+-------------------------------------------------------------------------------------
+* Phase from a read-backed or population-phased genotype: two ``|`` genotypes in the same
+  phase set (VCF ``PS``; phased genotypes without ``PS`` form one set, VCF 4.2 §1.4.2,
+  from memory) are in cis when the allele sits on the same haplotype index, else in trans.
+* Phase from parents: each parent carries a different one of the two alleles -> in trans;
+  one parent carries both and the other neither -> in cis; anything else -> unknown.
+* De novo: the proband carries the allele, both parents are confidently homozygous
+  reference (depth >= ``min_dp``, GQ >= ``min_gq``) with no alternate reads. On chrX
+  outside the pseudoautosomal regions a son's allele comes from his mother only.
+
+Qualifying-allele policy (``assess_gene``)
+-----------------------------------------
+Findings classed Pathogenic or Likely pathogenic are *strong* alleles. Findings of
+Uncertain significance are *candidate* alleles: they may complete a biallelic or dominant
+genotype fit (so a recessive gene is not dropped because one allele is a VUS), but the
+hypothesis built on them is weaker and is ranked and reported as a candidate, never as
+causative. Findings that fail the quality thresholds (``Finding.quality_flags``) never
+qualify; they are named in the notes so a reviewer can look at them.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Iterable, NamedTuple, Optional, Sequence
+
+from .models import Call, Finding, Gene, Variant
+
+# ---------------------------------------------------------------------------
+# Pseudoautosomal regions, 1-based inclusive, on chrX.
+# GRCh38: PAR1 X:10,001-2,781,479, PAR2 X:155,701,383-156,030,895 (GRC definitions as
+# listed by Ensembl, "Pseudoautosomal regions in human").
+# GRCh37: PAR1 X:60,001-2,699,520 (GRC, as quoted by UCSC Genome Browser support);
+# PAR2 X:154,931,044-155,260,560 (from memory; GRC GRCh37 assembly report).
+# ---------------------------------------------------------------------------
+PAR = {
+    "GRCh38": ((10_001, 2_781_479), (155_701_383, 156_030_895)),
+    "GRCh37": ((60_001, 2_699_520), (154_931_044, 155_260_560)),
+}
+
+STRONG_CLASSES = ("Pathogenic", "Likely pathogenic")
+CANDIDATE_CLASSES = ("Uncertain significance",)
+
+
+def bare_chrom(chrom: str) -> str:
+    c = chrom[3:] if chrom.lower().startswith("chr") else chrom
+    return "MT" if c in ("M", "MT") else c
+
+
+def in_par(chrom: str, pos: int, build: Optional[str] = None) -> bool:
+    """True when chrX:pos lies in a pseudoautosomal region (either build when ``build`` is None)."""
+    if bare_chrom(chrom) != "X":
+        return False
+    builds = [build] if build in PAR else list(PAR)
+    return any(lo <= pos <= hi for b in builds for lo, hi in PAR[b])
+
+
+def is_x_nonpar(variant: Variant, build: Optional[str] = None) -> bool:
+    return bare_chrom(variant.chrom) == "X" and not in_par(variant.chrom, variant.pos, build)
+
+
+# ---------------------------------------------------------------------------
+# Sex check
+# ---------------------------------------------------------------------------
+@dataclass
+class SexInference:
+    sex: Optional[str]  # "MALE", "FEMALE" or None when the data cannot tell
+    het_fraction: Optional[float]  # heterozygous / all non-reference calls on chrX outside the PARs
+    n_sites: int
+    warning: str = ""
+
+
+# Thresholds (common practice, no single source): males show almost no heterozygous calls
+# on chrX outside the PARs (only genotyping errors), females show many.
+MALE_MAX_HET_FRACTION = 0.10
+FEMALE_MIN_HET_FRACTION = 0.25
+MIN_SEX_SITES = 10
+
+
+def infer_sex(variants: Iterable[Variant], sample: str, stated: Optional[str] = None,
+              build: Optional[str] = None, min_sites: int = MIN_SEX_SITES) -> SexInference:
+    """Infer chromosomal sex from heterozygosity on chrX outside the pseudoautosomal regions.
+
+    Counts non-reference calls of ``sample`` at chrX non-PAR sites (each original VCF site
+    once); haploid calls count as non-heterozygous. Returns ``sex=None`` with fewer than
+    ``min_sites`` sites or a fraction between the two thresholds, and a warning when the
+    inference contradicts ``stated``.
+    """
+    seen: set[tuple[str, int]] = set()
+    het = nonref = 0
+    for v in variants:
+        if not is_x_nonpar(v, build):
+            continue
+        site = (bare_chrom(v.chrom), v.original_pos or v.pos)
+        if site in seen:
+            continue
+        c = v.calls.get(sample)
+        if c is None or any(a is None for a in c.gt) or not c.gt:
+            continue
+        if all(a == 0 for a in c.gt):
+            continue
+        seen.add(site)
+        nonref += 1
+        if len(c.gt) >= 2 and len(set(c.gt)) > 1:
+            het += 1
+    stated_n = stated.upper() if isinstance(stated, str) else None
+    if nonref < min_sites:
+        return SexInference(None, (het / nonref) if nonref else None, nonref,
+                            "" if stated_n else f"sex not inferred: only {nonref} non-reference chrX "
+                                                 f"sites outside the pseudoautosomal regions (need {min_sites})")
+    frac = het / nonref
+    if frac <= MALE_MAX_HET_FRACTION:
+        sex = "MALE"
+    elif frac >= FEMALE_MIN_HET_FRACTION:
+        sex = "FEMALE"
+    else:
+        sex = None
+    warning = ""
+    if sex is None:
+        warning = (f"sex unclear from chrX: heterozygous fraction {frac:.2f} over {nonref} sites "
+                   f"(male <= {MALE_MAX_HET_FRACTION}, female >= {FEMALE_MIN_HET_FRACTION})")
+    elif stated_n in ("MALE", "FEMALE") and stated_n != sex:
+        warning = (f"stated sex {stated_n} but chrX heterozygosity suggests {sex} "
+                   f"(heterozygous fraction {frac:.2f} over {nonref} sites): check for a sample mix-up "
+                   f"or a sex-chromosome aneuploidy")
+    return SexInference(sex, frac, nonref, warning)
+
+
+# ---------------------------------------------------------------------------
+# Call helpers
+# ---------------------------------------------------------------------------
+def _call(f: Finding, sample: Optional[str]) -> Optional[Call]:
+    if sample is None:
+        return None
+    return f.variant.calls.get(sample)
+
+
+def _called(c: Optional[Call]) -> bool:
+    return c is not None and bool(c.gt) and all(a is not None for a in c.gt)
+
+
+def carries(c: Optional[Call]) -> Optional[bool]:
+    """True/False whether the sample carries this allele; None when the genotype is missing."""
+    if c is None or not c.gt:
+        return None
+    if any(a == 1 for a in c.gt):
+        return True
+    if all(a is not None for a in c.gt):
+        return False
+    return None
+
+
+def _confident(c: Optional[Call], min_dp: int, min_gq: int) -> bool:
+    if not _called(c):
+        return False
+    if c.dp is not None and c.dp < min_dp:
+        return False
+    if c.gq is not None and c.gq < min_gq:
+        return False
+    return True
+
+
+def _class(f: Finding) -> Optional[str]:
+    return f.classification.classification if f.classification is not None else None
+
+
+def _fmt_ab(c: Optional[Call]) -> str:
+    ab = c.allele_balance if c is not None else None
+    return "n/a" if ab is None else f"{ab:.2f}"
+
+
+# ---------------------------------------------------------------------------
+# Phase
+# ---------------------------------------------------------------------------
+class Phase(NamedTuple):
+    phase: str  # "trans", "cis" or "unknown"
+    how: str
+
+
+def phase_between(a: Finding, b: Finding, proband: str, mother: Optional[str] = None,
+                  father: Optional[str] = None, min_dp: int = 10, min_gq: int = 20) -> Phase:
+    """Phase of two alleles the proband carries, from phased genotypes or from the parents."""
+    ca, cb = _call(a, proband), _call(b, proband)
+    if not carries(ca) or not carries(cb):
+        return Phase("unknown", "the proband does not carry both alleles")
+    if ca.alt_copies >= 2 or cb.alt_copies >= 2:
+        return Phase("unknown", "one allele is homozygous, so phase between the two is not defined")
+    if len(ca.gt) < 2 or len(cb.gt) < 2:
+        return Phase("unknown", "haploid call: phase not defined")
+
+    # 1. read-backed / statistical phasing in one phase set
+    if ca.phased and cb.phased and ca.phase_set == cb.phase_set:
+        ps = "no PS (one phase set)" if ca.phase_set is None else f"PS {ca.phase_set}"
+        same = ca.gt.index(1) == cb.gt.index(1)
+        return Phase("cis" if same else "trans",
+                     f"phased genotypes {_gt(ca)} and {_gt(cb)} in the same phase set ({ps})")
+
+    # 2. parental genotypes
+    def parent_carries(f: Finding, pid: Optional[str]) -> Optional[bool]:
+        c = _call(f, pid)
+        k = carries(c)
+        if k is False and not _confident(c, min_dp, min_gq):
+            return None  # a low-quality reference call does not exclude carriage
+        return k
+
+    ma, mb = parent_carries(a, mother), parent_carries(b, mother)
+    fa, fb = parent_carries(a, father), parent_carries(b, father)
+    names = (f"{a.id}", f"{b.id}")
+    if mother is None and father is None:
+        extra = ""
+        if ca.phased and cb.phased:
+            extra = f" (phased genotypes are in different phase sets: {ca.phase_set} and {cb.phase_set})"
+        return Phase("unknown", "no phased genotypes in one phase set and no parental genotypes" + extra)
+    if None not in (ma, mb, fa, fb):
+        if ma and not mb and fb and not fa:
+            return Phase("trans", f"mother carries {names[0]} only, father carries {names[1]} only")
+        if fa and not fb and mb and not ma:
+            return Phase("trans", f"father carries {names[0]} only, mother carries {names[1]} only")
+        if ma and mb and not fa and not fb:
+            return Phase("cis", "mother carries both alleles, father neither")
+        if fa and fb and not ma and not mb:
+            return Phase("cis", "father carries both alleles, mother neither")
+        if not (ma or mb or fa or fb):
+            return Phase("unknown", "neither parent carries either allele (both apparently de novo)")
+        if (ma or fa) != (mb or fb):
+            novo = names[1] if (ma or fa) else names[0]
+            inh = names[0] if novo == names[1] else names[1]
+            return Phase("unknown", f"{inh} is inherited but {novo} is absent from both parents (apparently "
+                                    f"de novo); parental genotypes cannot place it on a haplotype")
+        return Phase("unknown", "both alleles are present in the parents in a pattern that does not resolve phase")
+    # one parent only (or missing calls)
+    for who, x, y in (("mother", ma, mb), ("father", fa, fb)):
+        if x is not None and y is not None and x != y:
+            carried = names[0] if x else names[1]
+            other = names[1] if x else names[0]
+            return Phase("unknown", f"only the {who} is informative: she/he carries {carried} but not {other}; "
+                                    f"{other} probably came from the other parent (in trans) unless it arose de "
+                                    f"novo - test the other parent")
+    return Phase("unknown", "parental genotypes missing, low quality or uninformative")
+
+
+def _gt(c: Call) -> str:
+    sep = "|" if c.phased else "/"
+    return sep.join("." if x is None else str(x) for x in c.gt)
+
+
+# ---------------------------------------------------------------------------
+# De novo
+# ---------------------------------------------------------------------------
+def de_novo_evidence(finding: Finding, proband: str, mother: Optional[str], father: Optional[str],
+                     min_dp: int = 10, min_gq: int = 20, proband_sex: Optional[str] = None,
+                     build: Optional[str] = None) -> tuple[Optional[bool], str]:
+    """(verdict, reason): True de novo, False inherited / parental alt reads, None not decidable."""
+    pc = _call(finding, proband)
+    if not carries(pc):
+        return False, "the proband does not carry the allele"
+    if not _confident(pc, min_dp, min_gq):
+        return None, f"proband call below quality (DP {pc.dp}, GQ {pc.gq}; need DP>={min_dp}, GQ>={min_gq})"
+    son_on_x = (proband_sex or "").upper() == "MALE" and is_x_nonpar(finding.variant, build)
+    parents = [("mother", mother)] if son_on_x else [("mother", mother), ("father", father)]
+    parts: list[str] = []
+    undecided: list[str] = []
+    for who, pid in parents:
+        if pid is None:
+            undecided.append(f"no {who} genotype")
+            continue
+        c = _call(finding, pid)
+        if c is None or not _called(c):
+            undecided.append(f"{who} genotype missing")
+            continue
+        if carries(c):
+            return False, f"{who} carries the allele ({_gt(c)})"
+        if c.ad_alt is not None and c.ad_alt > 0:
+            return False, (f"{who} is called reference but has {c.ad_alt} alternate read(s): possible "
+                           f"parental mosaicism or inheritance, not counted as de novo")
+        if c.dp is None:
+            undecided.append(f"{who} depth unknown")
+            continue
+        if c.dp < min_dp or (c.gq is not None and c.gq < min_gq):
+            undecided.append(f"{who} reference call has low support (DP {c.dp}, GQ {c.gq})")
+            continue
+        parts.append(f"{who} reference ({_gt(c)}, DP {c.dp}, GQ {c.gq})")
+    if undecided:
+        return None, "; ".join(undecided + parts)
+    why = "; ".join(parts)
+    if son_on_x:
+        why += " (chrX outside the PARs in a male: father's genotype not needed)"
+    return True, why
+
+
+def is_de_novo(finding: Finding, proband: str, mother: Optional[str], father: Optional[str],
+               min_dp: int = 10, min_gq: int = 20, proband_sex: Optional[str] = None,
+               build: Optional[str] = None) -> Optional[bool]:
+    return de_novo_evidence(finding, proband, mother, father, min_dp, min_gq, proband_sex, build)[0]
+
+
+# ---------------------------------------------------------------------------
+# Genotype fit per gene
+# ---------------------------------------------------------------------------
+@dataclass
+class GenotypeAssessment:
+    fit: str  # one of models.GENOTYPE_FITS
+    phase: str = ""  # "in trans (parents)", "in cis (phased genotypes)", "unknown", "" when not relevant
+    qualifying_ids: list[str] = field(default_factory=list)  # findings that make up the fit
+    pairs: list[tuple[str, str, str, str]] = field(default_factory=list)  # (id_a, id_b, phase, how)
+    notes: list[str] = field(default_factory=list)
+    possible_deletion: bool = False
+    mode: str = ""  # the inheritance mode the fit belongs to: "AR", "AD", "XLR", "XLD" or ""
+    strong_alleles: int = 0  # Pathogenic / Likely pathogenic alleles in the fit (homozygous counts 2)
+    candidate_alleles: int = 0  # Uncertain significance alleles in the fit
+    manifesting_carrier_possible: bool = False  # heterozygous female in an X-linked recessive gene
+    de_novo_ids: list[str] = field(default_factory=list)
+    excluded_ids: list[str] = field(default_factory=list)  # carried but failing quality or unclassified
+
+
+# Order used to choose between the fits of a gene with several modes (lower is better).
+FIT_PREFERENCE = {
+    "biallelic in trans": 0,
+    "homozygous": 1,
+    "hemizygous": 1,
+    "de novo": 2,
+    "biallelic phase unknown": 3,
+    "heterozygous in a dominant gene": 4,
+    "single heterozygous in a recessive gene": 6,
+    "no qualifying finding": 7,
+}
+
+# Genes where heterozygous females commonly show signs (from memory: RPGR and CHM carriers
+# often have fundus changes; other XL genes may too).
+MANIFESTING_CARRIER_GENES = ("RPGR", "RP2", "CHM")
+
+
+def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Optional[str],
+                mother: Optional[str] = None, father: Optional[str] = None,
+                qualifying: Sequence[str] = ("Pathogenic", "Likely pathogenic", "Uncertain significance"),
+                build: Optional[str] = None, context: Sequence[Variant] = (),
+                min_dp: int = 10, min_gq: int = 20) -> GenotypeAssessment:
+    """Decide how the proband's findings in ``gene`` fit the gene's inheritance.
+
+    ``context``: other variants (any class) near the gene, used only to look for
+    heterozygous calls when a homozygous call might hide a deletion on the other allele.
+    """
+    sex_n = sex.upper() if isinstance(sex, str) else None
+    notes: list[str] = []
+    alleles: list[tuple[Finding, Call]] = []
+    excluded: list[str] = []
+    for f in findings:
+        c = _call(f, proband)
+        if not carries(c):
+            continue
+        cls = _class(f)
+        if not f.passes_quality:
+            excluded.append(f.id)
+            notes.append(f"{f.id} not counted: failed quality ({'; '.join(f.quality_flags)})")
+            continue
+        if cls is None:
+            excluded.append(f.id)
+            notes.append(f"{f.id} not counted: not classified")
+            continue
+        if cls not in qualifying:
+            continue
+        alleles.append((f, c))
+
+    x_nonpar = [f for f, _ in alleles if is_x_nonpar(f.variant, build)]
+    modes = [m for m in gene.inheritance if m in ("AR", "AD", "XLR", "XLD")]
+    if "MT" in gene.inheritance and not modes:
+        a = GenotypeAssessment("no qualifying finding", notes=notes + [
+            "mitochondrial inheritance is not assessed (heteroplasmy is not modelled)"], excluded_ids=excluded)
+        return a
+    if not alleles:
+        return GenotypeAssessment("no qualifying finding", notes=notes, excluded_ids=excluded)
+
+    options: list[GenotypeAssessment] = []
+    for mode in modes:
+        if mode in ("XLR", "XLD") and sex_n == "MALE":
+            opt = _hemizygous(alleles, mode, build, notes_prefix=[])
+        elif mode in ("AR",) or (mode == "XLR" and sex_n != "MALE"):
+            opt = _recessive(gene, alleles, mode, proband, mother, father, build, context, min_dp, min_gq)
+            if mode == "XLR" and opt.fit == "single heterozygous in a recessive gene":
+                opt.manifesting_carrier_possible = True
+                who = "female" if sex_n == "FEMALE" else "person of unknown sex"
+                extra = (" (heterozygous females often show signs in this gene, from memory)"
+                         if gene.symbol in MANIFESTING_CARRIER_GENES else "")
+                opt.notes.append(f"heterozygous {who} in an X-linked recessive gene: carrier, possibly a "
+                                 f"manifesting carrier (skewed X inactivation){extra}")
+                if sex_n is None:
+                    opt.notes.append("sex unknown: if male, this chrX call would be hemizygous")
+        else:  # AD, or XLD in a female / unknown sex
+            opt = _dominant(alleles, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
+        options.append(opt)
+
+    best = min(options, key=lambda o: (FIT_PREFERENCE[o.fit], -o.strong_alleles, -len(o.qualifying_ids)))
+    best.notes = notes + best.notes
+    best.excluded_ids = excluded
+    if len(modes) > 1:
+        alts = ", ".join(f"{o.mode}: {o.fit}" for o in options if o is not best)
+        best.notes.append(f"gene has several inheritance modes ({'/'.join(modes)}); chose {best.mode} "
+                          f"({best.fit}) as the best-supported fit; other modes: {alts}")
+        if best.mode in ("AD", "XLD") and any(m in ("AR", "XLR") for m in modes):
+            best.notes.append("check that the allele is known to act dominantly: many alleles in genes with "
+                              "both modes act only recessively (common practice)")
+    if x_nonpar and sex_n is None and any(m in ("XLR", "XLD") for m in modes):
+        best.notes.append("sex unknown: chrX calls interpreted as diploid")
+    return best
+
+
+def _strength(fs: Iterable[Finding]) -> tuple[int, int]:
+    s = c = 0
+    for f in fs:
+        if _class(f) in STRONG_CLASSES:
+            s += 1
+        else:
+            c += 1
+    return s, c
+
+
+def _hemizygous(alleles, mode, build, notes_prefix) -> GenotypeAssessment:
+    notes = list(notes_prefix)
+    hemi = [(f, c) for f, c in alleles if is_x_nonpar(f.variant, build)]
+    if not hemi:
+        return GenotypeAssessment("no qualifying finding", mode=mode,
+                                  notes=["qualifying calls lie in a pseudoautosomal region, not hemizygous"])
+    hemi.sort(key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
+    f, c = hemi[0]
+    if c.zygosity == "heterozygous" or (len(c.gt) >= 2 and c.alt_copies == 1):
+        ab = c.allele_balance
+        hint = ("allele balance " + _fmt_ab(c) + (" looks heterozygous: check for sample contamination, "
+                "XXY or a mapping artefact" if ab is not None and ab < 0.8 else " is consistent with one copy"))
+        notes.append(f"{f.id} is called {_gt(c)} in a male on chrX outside the PARs; treated as hemizygous "
+                     f"({hint})")
+    s, k = _strength([f])
+    return GenotypeAssessment("hemizygous", phase="", qualifying_ids=[f.id], notes=notes, mode=mode,
+                              strong_alleles=s, candidate_alleles=k)
+
+
+def _dominant(alleles, mode, proband, mother, father, sex_n, build, min_dp, min_gq) -> GenotypeAssessment:
+    ranked = sorted(alleles, key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
+    notes: list[str] = []
+    de_novo_ids = []
+    chosen = ranked[0]
+    for f, c in ranked:
+        v, why = de_novo_evidence(f, proband, mother, father, min_dp, min_gq, sex_n, build)
+        if v:
+            de_novo_ids.append(f.id)
+            notes.append(f"{f.id} de novo: {why}")
+        elif v is False and (mother or father):
+            notes.append(f"{f.id} not de novo: {why}")
+    if de_novo_ids:
+        chosen = next(fc for fc in ranked if fc[0].id == de_novo_ids[0])
+    f, c = chosen
+    s, k = _strength([f])
+    fit = "de novo" if de_novo_ids else "heterozygous in a dominant gene"
+    if c.alt_copies >= 2:
+        notes.append(f"{f.id} is homozygous in a dominant gene")
+    return GenotypeAssessment(fit, qualifying_ids=[f.id], notes=notes, mode=mode, strong_alleles=s,
+                              candidate_alleles=k, de_novo_ids=de_novo_ids)
+
+
+_PHASE_ORDER = {"trans": 0, "unknown": 1, "cis": 2}
+
+
+def _recessive(gene, alleles, mode, proband, mother, father, build, context, min_dp, min_gq) -> GenotypeAssessment:
+    notes: list[str] = []
+    homs = [(f, c) for f, c in alleles if c.alt_copies >= 2]
+    hets = [(f, c) for f, c in alleles if c.alt_copies == 1]
+    homs.sort(key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
+    if homs:
+        f, c = homs[0]
+        s = 2 if _class(f) in STRONG_CLASSES else 0
+        a = GenotypeAssessment("homozygous", phase="homozygous", qualifying_ids=[f.id], mode=mode,
+                               strong_alleles=s, candidate_alleles=2 - s)
+        a.possible_deletion, why = _deletion_check(f, c, proband, mother, father, alleles, context, min_dp, min_gq)
+        a.notes = notes + why
+        return a
+
+    pairs: list[tuple[str, str, str, str]] = []
+    best = None
+    for i in range(len(hets)):
+        for j in range(i + 1, len(hets)):
+            fa, fb = hets[i][0], hets[j][0]
+            ph = phase_between(fa, fb, proband, mother, father, min_dp, min_gq)
+            pairs.append((fa.id, fb.id, ph.phase, ph.how))
+            s, k = _strength([fa, fb])
+            key = (_PHASE_ORDER[ph.phase], -s, fa.id, fb.id)
+            if best is None or key < best[0]:
+                best = (key, fa, fb, ph, s, k)
+    if best is not None and best[3].phase != "cis":
+        _, fa, fb, ph, s, k = best
+        if ph.phase == "trans":
+            how = "parents" if ("mother" in ph.how or "father" in ph.how) else "phased genotypes"
+            fit, phase = "biallelic in trans", f"in trans ({how})"
+        else:
+            fit, phase = "biallelic phase unknown", "unknown"
+        a = GenotypeAssessment(fit, phase=phase, qualifying_ids=[fa.id, fb.id], pairs=pairs, mode=mode,
+                               strong_alleles=s, candidate_alleles=k)
+        a.notes = notes + [f"{fa.id} + {fb.id}: {ph.phase} - {ph.how}"]
+        if k:
+            a.notes.append("the biallelic genotype includes a variant of uncertain significance: a weaker "
+                           "hypothesis until that variant is resolved")
+        return a
+
+    het = sorted(hets, key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
+    f = het[0][0]
+    s, k = _strength([f])
+    a = GenotypeAssessment("single heterozygous in a recessive gene", qualifying_ids=[f.id], pairs=pairs,
+                           mode=mode, strong_alleles=s, candidate_alleles=k)
+    if best is not None:  # only cis pairs
+        a.phase = "in cis"
+        a.notes.append("all pairs of alleles are in cis (" + "; ".join(f"{p[0]}+{p[1]}: {p[3]}" for p in pairs)
+                       + "): one affected haplotype only")
+    return a
+
+
+def _deletion_check(f: Finding, c: Call, proband, mother, father, alleles, context, min_dp, min_gq
+                    ) -> tuple[bool, list[str]]:
+    """Could an apparent homozygous call be one allele over a deletion (hemizygosity)?"""
+    notes: list[str] = []
+    mk, fk = carries(_call(f, mother)), carries(_call(f, father))
+    if mother and father and mk is not None and fk is not None:
+        if mk and fk:
+            return False, [f"{f.id} homozygous; both parents carry it, so a deletion on the other allele is "
+                           f"not suggested"]
+        if mk != fk:
+            who, other = ("mother", "father") if mk else ("father", "mother")
+            oc = _call(f, father if mk else mother)
+            if _confident(oc, min_dp, min_gq):
+                return True, [f"{f.id} homozygous but only the {who} carries it and the {other} is reference: "
+                              f"a deletion on the {other}'s allele (or uniparental disomy) is possible - "
+                              f"check copy number"]
+    # heterozygous calls in the gene / nearby argue against a large deletion
+    het_nearby = []
+    for g, gc in alleles:
+        if gc.alt_copies == 1:
+            het_nearby.append(g.id)
+    for v in context:
+        vc = v.calls.get(proband)
+        if vc is not None and len(vc.gt) >= 2 and vc.alt_copies == 1 and vc.gt.count(0) == 1:
+            het_nearby.append(v.key)
+    ab = c.allele_balance
+    if het_nearby:
+        return False, [f"{f.id} homozygous (allele balance {_fmt_ab(c)}); heterozygous calls nearby "
+                       f"({', '.join(het_nearby[:3])}) argue against a large deletion"]
+    notes.append(f"{f.id} homozygous (allele balance {_fmt_ab(c)}) with no heterozygous calls in the gene or "
+                 f"nearby: a deletion on the other allele cannot be excluded (also consistent with a run of "
+                 f"homozygosity); parental testing or copy-number analysis would tell")
+    if ab is not None and ab < 0.85:
+        notes.append(f"allele balance {ab:.2f} is low for a homozygous call")
+    return True, notes
