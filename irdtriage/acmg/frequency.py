@@ -1,0 +1,184 @@
+"""Population-frequency criteria: BA1, BS1, PM2 (Supporting), BS2.
+
+Maximum credible population allele frequency (Whiffin et al., Genet Med 2017;19:1151-1158).
+
+Dominant (the paper's form): a fully penetrant heterozygote carries one disease allele, so
+with prevalence P, genetic contribution g (share of cases due to the gene), allelic
+contribution a (largest share of the gene's cases due to one allele) and penetrance f,
+carriers of the allele are P*g*a/f of the population and, each carrying one of two alleles,
+    maxAF = P * a * g / (2 * f).
+
+Recessive (derived here): let Q be the summed frequency of all disease alleles in the gene.
+Under Hardy-Weinberg and random pairing, affected-by-this-gene = f * Q^2 = P * g, so
+Q = sqrt(P * g / f).  In cases the alleles appear in proportion to their population
+frequencies, so an allele making up a share a of case alleles has frequency q = a * Q:
+    maxAF = a * sqrt(P * g / f).
+(a is the allele's share of disease *alleles*; an allele present in a share c of cases on
+at least one chromosome has a ~ c/2 when it is mostly paired with other alleles.)
+
+The observed value compared with maxAF is the filtering allele frequency (irdtriage.evidence
+.faf), the conservative lower bound of the true AF; popmax AF is used when AC/AN are absent.
+"""
+from __future__ import annotations
+
+import math
+import re
+from typing import Optional
+
+from ..evidence.popfreq import summarise
+from ..models import Annotation, CriterionResult, Gene, Variant
+from .common import protein_change, result
+from .rules import Rules
+
+NO_FREQ = ("no population frequency available (needs --population-vcf, or gnomAD-style fields "
+           "in INFO/annotation)")
+
+
+def max_credible_af(prevalence: float, allelic_contribution: float, genetic_contribution: float,
+                    penetrance: float, inheritance: str = "dominant") -> float:
+    """Whiffin 2017 maximum credible population allele frequency (see module docstring)."""
+    for name, v in (("prevalence", prevalence), ("allelic_contribution", allelic_contribution),
+                    ("genetic_contribution", genetic_contribution), ("penetrance", penetrance)):
+        if not (0 < v <= 1):
+            raise ValueError(f"{name} must be in (0, 1], got {v}")
+    if inheritance == "dominant":
+        return prevalence * allelic_contribution * genetic_contribution / (2.0 * penetrance)
+    if inheritance == "recessive":
+        return allelic_contribution * math.sqrt(prevalence * genetic_contribution / penetrance)
+    raise ValueError(f"inheritance must be dominant or recessive, got {inheritance!r}")
+
+
+def _norm_p(s: str) -> Optional[tuple]:
+    pc = protein_change(s)
+    return pc if pc else None
+
+
+def _norm_c(s: str) -> str:
+    s = (s or "").split(":", 1)[-1].strip()
+    return re.sub(r"\s+", "", s)
+
+
+def frequency_exception(variant: Variant, ann: Optional[Annotation], gene: Gene, rules: Rules) -> Optional[dict]:
+    """A curated BA1/BS1 exception matching this variant (by key, HGVS c. or HGVS p.)."""
+    for e in rules.exceptions(gene.symbol):
+        if e.get("key") and e["key"] == variant.key:
+            return e
+        if ann is not None:
+            if e.get("hgvs_c") and _norm_c(ann.hgvs_c) and _norm_c(ann.hgvs_c) == _norm_c(e["hgvs_c"]):
+                return e
+            if e.get("hgvs_p") and ann.hgvs_p and _norm_p(ann.hgvs_p) and _norm_p(ann.hgvs_p) == _norm_p(e["hgvs_p"]):
+                return e
+    return None
+
+
+def _observed(pop: dict, rules: Rules) -> dict:
+    f = rules.frequency
+    s = summarise(pop, tuple(f["continental"]), f["min_an"])
+    popmax = s["popmax_af"] if s["popmax_af"] is not None else pop.get("popmax_af")
+    popmax_pop = s["popmax_population"]
+    faf, faf_pop = s["faf"], s["faf_population"]
+    if faf is None and not pop.get("populations"):
+        faf = pop.get("faf95")
+    af = pop.get("af")
+    return {"af": af, "popmax_af": popmax, "popmax_population": popmax_pop, "popmax_an": s["popmax_an"],
+            "faf": faf, "faf_population": faf_pop, "ac": pop.get("ac"), "an": pop.get("an"),
+            "nhomalt": pop.get("nhomalt"), "source": pop.get("source")}
+
+
+def _fmt(x: Optional[float]) -> str:
+    return "n/a" if x is None else (f"{x:.3g}" if x else "0")
+
+
+def evaluate_frequency(variant: Variant, ann: Optional[Annotation], gene: Gene, rules: Rules,
+                       ev: dict) -> list[CriterionResult]:
+    pop = ev.get("population")
+    if not pop:
+        return [result(c, None, None, NO_FREQ) for c in ("BA1", "BS1", "PM2", "BS2")]
+    obs = _observed(pop, rules)
+    f, g = rules.frequency, rules.gene(gene.symbol)
+    exc = frequency_exception(variant, ann, gene, rules)
+    where = f" in {obs['popmax_population']}" if obs["popmax_population"] else ""
+    highest = obs["popmax_af"] if obs["popmax_af"] is not None else obs["af"]
+    out = []
+
+    # BA1 (Ghosh 2018): > threshold in a continental population with enough alleles.
+    ba1_t = g.get("ba1_af", f["ba1_af"])
+    if highest is None:
+        out.append(result("BA1", None, None, "population record has no allele frequency", **obs))
+    elif exc and highest > ba1_t:
+        out.append(result("BA1", False, None, f"AF {_fmt(highest)}{where} > {ba1_t:g} but curated exception: "
+                          f"{exc['reason']}", exception=exc, **obs))
+    elif highest > ba1_t:
+        out.append(result("BA1", True, "StandAlone", f"AF {_fmt(highest)}{where} > {ba1_t:g} "
+                          f"({'gene specification' if 'ba1_af' in g else 'Ghosh et al. 2018'})", threshold=ba1_t, **obs))
+    else:
+        out.append(result("BA1", False, None, f"AF {_fmt(highest)}{where} <= {ba1_t:g}", threshold=ba1_t, **obs))
+
+    # BS1: filtering AF above the gene's maximum credible AF (or the gene specification's cut-off).
+    value, label = (obs["faf"], "filtering AF") if obs["faf"] is not None else (highest, "popmax AF")
+    if "bs1_af" in g:
+        t, basis = g["bs1_af"], g.get("spec", "gene specification")
+    elif "max_credible" in g:
+        m = g["max_credible"]
+        inh = m.get("inheritance") or ("recessive" if gene.recessive and not gene.dominant else "dominant")
+        t = max_credible_af(m["prevalence"], m["allelic_contribution"], m["genetic_contribution"],
+                            m["penetrance"], inh)
+        basis = f"maximum credible AF ({inh}, Whiffin et al. 2017)"
+    else:
+        t = None
+    if t is None:
+        out.append(result("BS1", None, None, f"no maximum credible AF curated for {gene.symbol} "
+                          "(add genes.{0}.max_credible to criteria.yaml)".format(gene.symbol), **obs))
+    elif value is None:
+        out.append(result("BS1", None, None, "no allele frequency to compare", **obs))
+    elif exc and value > t:
+        out.append(result("BS1", False, None, f"{label} {_fmt(value)} > {t:.3g} but curated exception: "
+                          f"{exc['reason']}", exception=exc, threshold=t, **obs))
+    elif value > t:
+        out.append(result("BS1", True, "Strong", f"{label} {_fmt(value)} > {t:.3g} ({basis})", threshold=t, **obs))
+    else:
+        out.append(result("BS1", False, None, f"{label} {_fmt(value)} <= {t:.3g} ({basis})", threshold=t, **obs))
+
+    # PM2 at Supporting (SVI 2020): absent (dominant) / extremely rare (recessive).
+    if "pm2_max_af" in g:
+        t2, basis2 = g["pm2_max_af"], g.get("spec", "gene specification")
+    elif gene.dominant:
+        t2, basis2 = f["pm2_max_af_dominant"], "dominant gene: absent"
+    else:
+        t2, basis2 = f["pm2_max_af_recessive"], "recessive gene"
+    vals = [v for v in (obs["af"], obs["popmax_af"]) if v is not None]
+    if not vals:
+        out.append(result("PM2", None, None, "population record has no allele frequency", **obs))
+    else:
+        v2 = max(vals)
+        ok = (v2 == 0) if t2 == 0 else (v2 <= t2)
+        state = "absent" if v2 == 0 else f"AF {_fmt(v2)}"
+        out.append(result("PM2", ok, f["pm2_strength"], f"{state} {'<=' if ok else '>'} {t2:g} ({basis2}); "
+                          f"applied at {f['pm2_strength']} (SVI 2020)", threshold=t2, **obs))
+
+    # BS2: observed in healthy adults in a state that should cause disease (full penetrance).
+    if g.get("bs2"):
+        hom = obs["nhomalt"]
+        if hom is None and pop.get("found") is False:
+            hom = 0
+        if hom is None:
+            out.append(result("BS2", None, None, "no homozygote count in the population data", **obs))
+        else:
+            need = f["bs2_min_homozygotes"]
+            out.append(result("BS2", hom >= need, "Strong", f"{hom} homozygotes in population data "
+                              f"({'>=' if hom >= need else '<'} {need}; {gene.symbol} curated as fully penetrant, "
+                              "early-onset recessive)", **obs))
+    elif g.get("bs2_dominant"):
+        ac, hom = obs["ac"], obs["nhomalt"] or 0
+        if ac is None:
+            out.append(result("BS2", None, None, "no allele count in the population data", **obs))
+        else:
+            het = ac - 2 * hom
+            need = f["bs2_min_heterozygotes_dominant"]
+            out.append(result("BS2", het >= need, "Strong", f"{het} heterozygotes in population data "
+                              f"({'>=' if het >= need else '<'} {need}; {gene.symbol} curated as fully penetrant dominant)",
+                              **obs))
+    else:
+        out.append(result("BS2", False, None, f"{gene.symbol} is not curated as fully penetrant with early onset "
+                          "(BS2 needs that gene-level fact)", **obs))
+    return out

@@ -1,0 +1,103 @@
+"""PVS1 by the ClinGen SVI decision tree (Abou Tayoun et al., Hum Mutat 2018;39:1517-1524).
+
+Branches implemented (strength names as applied):
+
+* nonsense / frameshift
+  - NMD predicted (stop not in the last exon and not in the last 50 nt of the penultimate
+    exon) and the transcript is the biologically relevant one (MANE Select) -> VeryStrong;
+    not MANE -> Strong (relevance of the exon not established here);
+  - NMD not predicted -> Strong when the truncated region holds a curated critical region or
+    removes > 10 % of the protein, else Moderate.
+  - exon unknown, or penultimate exon without the distance to its end: NMD cannot be
+    predicted -> the NMD-escape branch is used (conservative) and the reason says so.
+* canonical +/-1,2 splice: without a transcript model the effect of exon skipping on frame
+  and NMD is not assessable -> conservative branch (frame preserved, region not known to be
+  critical, share of protein unknown) -> Moderate.
+* initiation codon -> Moderate by default (no alternative start known), per-gene override.
+* whole-transcript deletion -> VeryStrong; exon loss (frame unknown) -> Moderate.
+Only for genes whose panel mechanisms include LOF.
+"""
+from __future__ import annotations
+
+from ..models import Annotation, CriterionResult, Gene
+from .common import ABLATION, EXON_LOSS, NONSENSE_FS, SPLICE_CANONICAL, START_LOST, fraction, protein_position, \
+    result, terms
+from .rules import Rules
+
+
+def _mechanism_note(gene: Gene) -> str:
+    other = [m for m in gene.mechanisms if m != "LOF"]
+    if other:
+        return (f"; note: {gene.symbol} also acts by {'/'.join(other)} - loss of function is the "
+                f"{'recessive ' if gene.recessive else ''}mechanism PVS1 assesses")
+    return ""
+
+
+def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules) -> CriterionResult:
+    t = terms(ann)
+    null = t & (NONSENSE_FS | SPLICE_CANONICAL | START_LOST | ABLATION | EXON_LOSS)
+    if not null:
+        return result("PVS1", False, None, f"not a predicted null variant ({', '.join(sorted(t)) or 'no consequence'})",
+                      consequence=sorted(t))
+    if "LOF" not in gene.mechanisms:
+        return result("PVS1", False, None,
+                      f"loss of function is not an established disease mechanism for {gene.symbol} "
+                      f"(panel mechanisms: {', '.join(gene.mechanisms) or 'none'})", mechanisms=list(gene.mechanisms))
+    note = _mechanism_note(gene)
+    cfg = rules.pvs1
+    g = rules.gene(gene.symbol)
+    ev = {"consequence": sorted(null), "exon": ann.exon, "intron": ann.intron, "transcript": ann.transcript,
+          "mane": ann.is_mane}
+    if t & ABLATION:
+        return result("PVS1", True, "VeryStrong", "whole-transcript deletion" + note, **ev)
+    if t & NONSENSE_FS:
+        return _truncating(ann, gene, g, cfg, ev, note)
+    if t & SPLICE_CANONICAL:
+        return result("PVS1", True, "Moderate",
+                      f"canonical splice site ({ann.hgvs_c or 'position from consequence'}): no transcript model "
+                      "for the exon-skipping frame/NMD outcome, conservative branch -> Moderate" + note, **ev)
+    if t & START_LOST:
+        s = g.get("start_lost_strength", cfg["start_lost_strength"])
+        return result("PVS1", True, s, f"initiation codon variant ({ann.hgvs_p or ann.hgvs_c}): no curated "
+                      f"alternative start for {gene.symbol} -> {s}" + note, **ev)
+    return result("PVS1", True, "Moderate", "exon loss with unknown effect on reading frame: conservative -> Moderate"
+                  + note, **ev)
+
+
+def _truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: dict, note: str) -> CriterionResult:
+    n, total = fraction(ann.exon)
+    pos, length, pos_key = protein_position(ann)
+    ev.update(protein_position=pos, protein_length=length, protein_position_field=pos_key)
+    if n is not None and total is not None:
+        if n == total:
+            nmd, why = False, f"stop in the last exon ({n}/{total}): NMD not predicted"
+        elif n == total - 1:
+            nmd, why = None, (f"stop in the penultimate exon ({n}/{total}); distance to its 3' end unknown, "
+                              f"so escape from NMD (last {cfg['nmd_penultimate_nt']} nt) cannot be excluded")
+        else:
+            nmd, why = True, f"exon {n}/{total}: NMD predicted"
+    else:
+        nmd, why = None, "exon number not annotated: NMD cannot be predicted"
+    ev["nmd_predicted"] = nmd
+    if nmd:
+        if ann.is_mane:
+            return result("PVS1", True, "VeryStrong", f"{ann.hgvs_p or ann.hgvs_c}: {why} in MANE Select "
+                          f"{ann.transcript}" + note, **ev)
+        return result("PVS1", True, "Strong", f"{ann.hgvs_p or ann.hgvs_c}: {why}, but {ann.transcript or 'the transcript'} "
+                      "is not MANE Select (exon relevance not established) -> Strong" + note, **ev)
+    # NMD not predicted (or not predictable): truncated region critical or > 10 % of protein?
+    critical = [r for r in g.get("critical_residues", []) or [] if pos is not None and r["end"] >= pos]
+    if critical:
+        return result("PVS1", True, "Strong", f"{why}; truncated region contains curated critical region "
+                      f"{critical[0]['label']} -> Strong" + note, **ev)
+    if pos is not None and length:
+        removed = (length - pos + 1) / length
+        ev["removed_fraction"] = round(removed, 4)
+        limit = cfg["removed_fraction_strong"]
+        if removed > limit:
+            return result("PVS1", True, "Strong", f"{why}; removes {removed:.0%} of the protein "
+                          f"(residue {pos} of {length}, from {pos_key}) > {limit:.0%} -> Strong" + note, **ev)
+        return result("PVS1", True, "Moderate", f"{why}; removes {removed:.0%} of the protein "
+                      f"(residue {pos} of {length}) <= {limit:.0%} -> Moderate" + note, **ev)
+    return result("PVS1", True, "Moderate", f"{why}; protein length unknown so the removed share cannot be "
+                  "measured: conservative -> Moderate" + note, **ev)

@@ -1,0 +1,126 @@
+"""Gather the evidence one finding's criteria need, with explicit None for anything missing.
+
+``collect_evidence(variant, annotation, config, sources) -> dict``; keys:
+
+* ``population``: dict (see popfreq.PopulationSource.lookup) or None when no frequency data;
+* ``revel`` (+ ``revel_key``), ``spliceai`` (four delta scores) and ``spliceai_max``;
+* ``clinsig``: clinical significance written in INFO/annotation, or None;
+* ``clinical``: {same_variant, nearby} from a clinical-assertion VCF, or None without one;
+* ``scores``: {table name: value or None} from score tables.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any, Optional
+
+from ..models import Annotation, Variant
+from .clinical import ClinicalSource
+from .config import EvidenceConfig
+from .faf import filtering_af
+from .popfreq import PopulationSource
+from .scores import ScoreTable
+from .values import first_int, lookup, max_number, spliceai_from_string
+
+
+@dataclass
+class EvidenceSources:
+    population: Optional[PopulationSource] = None
+    clinical: Optional[ClinicalSource] = None
+    tables: list[ScoreTable] = field(default_factory=list)
+    config: EvidenceConfig = field(default_factory=EvidenceConfig)
+
+    @classmethod
+    def open(cls, popfreq_vcf: Optional[str] = None, clinical_vcf: Optional[str] = None,
+             score_tables=(), build: Optional[str] = None,
+             config: Optional[EvidenceConfig] = None) -> "EvidenceSources":
+        cfg = config or EvidenceConfig()
+        src = cls(config=cfg)
+        try:
+            if popfreq_vcf:
+                src.population = PopulationSource(str(popfreq_vcf), cfg)
+            if clinical_vcf:
+                src.clinical = ClinicalSource(str(clinical_vcf), cfg)
+            for spec in score_tables or ():
+                src.tables.append(ScoreTable(str(spec)))
+        except Exception:
+            src.close()
+            raise
+        return src
+
+    def close(self) -> None:
+        for s in [self.population, self.clinical, *self.tables]:
+            if s is not None:
+                s.close()
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        self.close()
+
+
+def _population_from_info(variant: Variant, annotation: Optional[Annotation], config: EvidenceConfig):
+    extra = annotation.extra if annotation else {}
+    af_key, af = lookup(config.af_keys, variant.info, extra)
+    pm_key, popmax = lookup(config.popmax_keys, variant.info, extra)
+    faf_key, faf = lookup(config.faf_keys, variant.info, extra)
+    _, ac = lookup(config.ac_keys, variant.info, extra)
+    _, an = lookup(config.an_keys, variant.info, extra)
+    _, hom = lookup(config.hom_keys, variant.info, extra)
+    if af is None and popmax is None and faf is None and ac is None:
+        return None
+    ac_i, an_i = first_int(ac), first_int(an)
+    af_f = max_number(af)
+    if af_f is None and ac_i is not None and an_i:
+        af_f = ac_i / an_i
+    return {
+        "source": "info", "keys": [k for k in (af_key, pm_key, faf_key) if k], "found": True,
+        "af": af_f, "ac": ac_i, "an": an_i, "nhomalt": first_int(hom), "populations": {},
+        "popmax_af": max_number(popmax), "popmax_population": None,
+        "faf95": max_number(faf) if faf is not None else (
+            filtering_af(ac_i, an_i) if ac_i is not None and an_i else None),
+        "faf95_population": None,
+    }
+
+
+def _spliceai(variant: Variant, annotation: Optional[Annotation], config: EvidenceConfig):
+    extra = annotation.extra if annotation else {}
+    gene = annotation.gene if annotation else ""
+    for d in (variant.info, extra):
+        for k in config.spliceai_string_keys:
+            if k in d:
+                ds = spliceai_from_string(d[k], variant.alt, gene)
+                if ds:
+                    return ds
+    for prefix in config.spliceai_ds_prefixes:
+        for d in (variant.info, extra):
+            vals = {n: max_number(d.get(prefix + n)) for n in ("DS_AG", "DS_AL", "DS_DG", "DS_DL")}
+            if all(v is not None for v in vals.values()):
+                return vals
+    return None
+
+
+def collect_evidence(variant: Variant, annotation: Optional[Annotation], config: Optional[EvidenceConfig] = None,
+                     sources: Optional[EvidenceSources] = None) -> dict[str, Any]:
+    config = config or (sources.config if sources else EvidenceConfig())
+    ev: dict[str, Any] = {}
+    extra = annotation.extra if annotation else {}
+    if sources is not None and sources.population is not None:
+        ev["population"] = sources.population.lookup(variant.chrom, variant.pos, variant.ref, variant.alt)
+    else:
+        ev["population"] = _population_from_info(variant, annotation, config)
+    rk, rv = lookup(config.revel_keys, variant.info, extra)
+    ev["revel"] = max_number(rv)
+    ev["revel_key"] = rk
+    ds = _spliceai(variant, annotation, config)
+    ev["spliceai"] = ds
+    ev["spliceai_max"] = max(ds.values()) if ds else None
+    _, cs = lookup(config.clinsig_keys, variant.info, extra)
+    ev["clinsig"] = (",".join(map(str, cs)) if isinstance(cs, (tuple, list)) else str(cs)) if cs is not None else None
+    ev["clinical"] = (sources.clinical.lookup(variant.chrom, variant.pos, variant.ref, variant.alt)
+                      if sources is not None and sources.clinical is not None else None)
+    ev["scores"] = {t.name: t.lookup(variant.chrom, variant.pos, variant.ref, variant.alt)
+                    for t in (sources.tables if sources else [])}
+    if ev["revel"] is None and ev["scores"].get("revel") is not None:
+        ev["revel"], ev["revel_key"] = ev["scores"]["revel"], "score table revel"
+    return ev
