@@ -1,0 +1,293 @@
+"""Self-contained HTML case report (inline CSS and SVG; no script, font, image or link to
+fetch), printable on A4. Every string from the result is escaped with html.escape."""
+from __future__ import annotations
+
+import html as _html
+from typing import Iterable, Optional
+
+from irdtriage import __version__
+
+from . import svg
+from .common import (
+    CLASS_SHORT,
+    cautions,
+    criterion_label,
+    criteria_compact,
+    fmt,
+    gene_findings,
+)
+
+CLASS_ORDER = ("Benign", "Likely benign", "Uncertain significance", "Likely pathogenic", "Pathogenic")
+
+METHODS = [
+    "Criteria are the 28 ACMG/AMP evidence codes of Richards et al., Genet Med 2015;17:405-424, "
+    "with the combining rules of its Table 5.",
+    "Each met criterion is also scored on the point scale of Tavtigian et al., Hum Mutat 2020;41:1734-1737, "
+    "and the Bayesian framework of Tavtigian et al., Genet Med 2018;20:1054-1060 gives a posterior "
+    "probability; where the methods disagree the report says so beside the finding.",
+    "Strength changes follow the published refinements of the ClinGen Sequence Variant Interpretation "
+    "working group where the rule set names them (for example PVS1 decision steps, PM2 at Supporting, "
+    "PP3/BP4 calibrated score ranges, PM3 by points).",
+    "Genotype fit is reasoned from zygosity, phase (phased genotypes or parental genotypes) and the "
+    "gene's curated inheritance; phenotype match compares the HPO terms given with the gene's HPO annotations.",
+]
+LIMITS = [
+    "Not automated: functional studies (PS3/BS3), case-level and segregation evidence beyond the VCF "
+    "family (PS4, PP1, BS4), reputable-source assertions (PP5/BP6, retired by ClinGen), and any "
+    "evidence a reviewer supplies; these show as not evaluable unless given.",
+    "Only small variants in the panel genes are assessed; copy-number, structural and repeat variants, "
+    "deep-intronic and regulatory effects, mosaicism and variants outside the panel are not.",
+    "Population data, in-silico scores and annotation come from the inputs named in the case header; "
+    "their versions limit what this report can know.",
+    "Phenotype match depends on the HPO terms supplied; missing or imprecise terms lower it.",
+]
+
+CSS = """
+:root{--ink:#22313f;--muted:#5f6b76;--paper:#fffdf8;--line:#d5dbe1;--ochre:#9a5b0f;--ochre-soft:#f6e3c4;
+--teal:#2f6f73;--teal-soft:#e4efee;--slate:#eef1f4}
+*{box-sizing:border-box}
+html{background:var(--paper);color:var(--ink)}
+body{font:15px/1.45 system-ui,-apple-system,"Segoe UI",Roboto,"Helvetica Neue",Arial,sans-serif;margin:0 auto;
+max-width:1100px;padding:18px 28px 40px}
+h1{font-size:24px;margin:8px 0 2px;letter-spacing:.2px}
+h2{font-size:19px;color:var(--teal);border-bottom:2px solid var(--teal);padding-bottom:3px;margin:30px 0 10px}
+h3{font-size:17px;margin:22px 0 6px}
+h4{font-size:15px;margin:16px 0 6px;color:var(--teal)}
+.sub{color:var(--muted);margin:0 0 10px}
+.caution{border:2px solid var(--ochre);background:var(--ochre-soft);padding:10px 14px;border-radius:8px;margin:12px 0;
+font-weight:600}
+.caution b{letter-spacing:.5px}
+dl.meta{display:grid;grid-template-columns:max-content 1fr max-content 1fr;gap:2px 14px;margin:8px 0;font-size:13.5px}
+dl.meta dt{color:var(--muted)}dl.meta dd{margin:0;word-break:break-all}
+.call{display:flex;gap:16px;align-items:center;border:1px solid var(--line);border-radius:10px;padding:12px 16px;background:#fff}
+.status{font-weight:800;letter-spacing:1px;padding:6px 12px;border-radius:6px;border:2px solid var(--ink);white-space:nowrap}
+.status.SOLVED{background:var(--ink);color:#fff}
+.status.IN_PROGRESS{background:repeating-linear-gradient(135deg,#fff 0 6px,var(--slate) 6px 12px)}
+table{border-collapse:collapse;width:100%;font-size:13.5px;margin:6px 0}
+th,td{border-bottom:1px solid var(--line);padding:4px 7px;text-align:left;vertical-align:top}
+th{background:var(--slate);font-weight:650}
+td.num{text-align:right;font-variant-numeric:tabular-nums}
+.scale{display:inline-flex;border:1px solid var(--ink);border-radius:4px;overflow:hidden;font-size:11px;vertical-align:middle}
+.scale span{padding:1px 5px;border-left:1px solid var(--line);color:var(--muted)}
+.scale span:first-child{border-left:0}
+.scale span.on{background:var(--ink);color:#fff;font-weight:700}
+.cls{font-weight:700;margin-left:6px}
+section.gene{border-left:4px solid var(--teal);padding-left:14px;margin-top:18px}
+.explain{display:grid;grid-template-columns:1fr 1fr;gap:12px}
+.explain div{background:var(--teal-soft);border-radius:8px;padding:8px 12px}
+.explain div.breaks{background:var(--ochre-soft)}
+.explain b{display:block;font-size:12px;text-transform:uppercase;letter-spacing:.6px;color:var(--muted)}
+tr.met td{background:#fbf1df}
+tr.met td.state{font-weight:700;color:var(--ochre)}
+tr.ne td.state{font-style:italic;color:var(--muted)}
+tr.notmet td{color:var(--muted)}
+.crit{font-family:ui-monospace,"DejaVu Sans Mono",Menlo,monospace;font-size:12.5px}
+figure{margin:8px 0 14px}figcaption{font-size:12.5px;color:var(--muted)}
+.muted{color:var(--muted)}
+ul{margin:4px 0 8px;padding-left:22px}
+footer{margin-top:28px;font-size:12px;color:var(--muted);border-top:1px solid var(--line);padding-top:8px}
+@page{size:A4;margin:14mm 12mm}
+@media print{
+ html{background:#fff}body{max-width:none;padding:0;font-size:10pt}
+ h2{break-after:avoid}h3,h4{break-after:avoid}
+ tr,figure,.call,.caution,.explain{break-inside:avoid}
+ section.gene{break-before:auto}
+ .status.IN_PROGRESS{background:#fff}
+ *{-webkit-print-color-adjust:exact;print-color-adjust:exact}
+}
+"""
+
+
+def e(s: object) -> str:
+    return _html.escape("" if s is None else str(s), quote=True)
+
+
+def _class_scale(cls: Optional[str]) -> str:
+    cells = "".join(f'<span class="{"on" if c == cls else ""}" title="{e(c)}">{CLASS_SHORT[c]}</span>' for c in CLASS_ORDER)
+    return f'<span class="scale" aria-hidden="true">{cells}</span><span class="cls">{e(cls or "not classified")}</span>'
+
+
+def _caution_box(result: dict) -> str:
+    return "".join(f'<p class="caution" role="note"><b>CAUTION</b> — {e(c)}</p>' for c in cautions(result))
+
+
+def _meta(result: dict) -> str:
+    s = result.get("sample") or {}
+    p = result.get("panel") or {}
+    r = result.get("rules") or {}
+    t = result.get("tool") or {}
+    run = result.get("run") or {}
+    sex = fmt(s.get("sex"))
+    if s.get("sex_source"):
+        sex += f" ({s['sex_source']}"
+        sex += f"; inferred {s['inferred_sex']})" if s.get("inferred_sex") else ")"
+    items = [
+        ("Sample", s.get("id")), ("Sex", sex),
+        ("Affected", {True: "yes", False: "no"}.get(s.get("affected"), "unknown")),
+        ("Parents", f"mother {fmt(s.get('mother'))}, father {fmt(s.get('father'))}"),
+        ("Genome build", result.get("genome_build")),
+        ("Tool", f"{fmt(t.get('name'))} {fmt(t.get('version'))}"),
+        ("Panel", f"{fmt(p.get('name'))} {fmt(p.get('version'))} ({fmt(p.get('genes'))} genes)"),
+        ("Panel sha256", p.get("sha256")),
+        ("Rule set", f"{fmt(r.get('name'))} {fmt(r.get('version'))}"),
+        ("Rule set sha256", r.get("sha256")),
+        ("Run started", run.get("started")), ("Command", run.get("command")),
+    ]
+    for inp in run.get("inputs") or []:
+        items.append((f"Input ({inp.get('role')})", f"{fmt(inp.get('path'))} sha256:{fmt(inp.get('sha256'))}"))
+    return '<dl class="meta">' + "".join(f"<dt>{e(k)}</dt><dd>{e(fmt(v))}</dd>" for k, v in items) + "</dl>"
+
+
+def _genes_table(result: dict) -> str:
+    rows = []
+    for g in result.get("genes") or []:
+        pm = g.get("phenotype_match") or {}
+        cal = pm.get("calibrated")
+        st = g.get("cascade_step") or {}
+        rows.append(
+            f'<tr><td class="num">{e(g.get("rank"))}</td><td><a href="#gene-{e(g.get("symbol"))}"><b>{e(g.get("symbol"))}</b></a></td>'
+            f'<td>{e("/".join(g.get("inheritance") or []) or "—")}</td><td>{e(g.get("genotype_fit"))}</td>'
+            f'<td class="num">{e(f"{cal:.2f}" if isinstance(cal, (int, float)) else "n/a")}</td>'
+            f'<td>{_class_scale(g.get("strongest_class"))}</td><td>{e(", ".join(g.get("findings") or []))}</td>'
+            f'<td>{e(st.get("title") or "—")}</td></tr>')
+    if not rows:
+        return '<p class="muted">No gene hypothesis: no finding in a panel gene passed the filters.</p>'
+    return ("<table><thead><tr><th>Rank</th><th>Gene</th><th>Inheritance</th><th>Genotype fit</th>"
+            "<th>Phenotype match</th><th>Strongest classification</th><th>Findings</th><th>Cascade step</th></tr></thead><tbody>"
+            + "".join(rows) + "</tbody></table>")
+
+
+def _criteria_table(f: dict) -> str:
+    rows = []
+    for c in f.get("criteria") or []:
+        met = c.get("met")
+        cls, state = {True: ("met", "met"), False: ("notmet", "not met"), None: ("ne", "not evaluable")}[met]
+        rows.append(f'<tr class="{cls}"><td class="crit">{e(c.get("code"))}</td><td class="state">{state}</td>'
+                    f'<td>{e(c.get("strength") or "—")}</td><td>{e(c.get("reason"))}</td><td>{e(c.get("source") or "")}</td></tr>')
+    return ('<table class="criteria"><thead><tr><th>Criterion</th><th>Status</th><th>Strength</th><th>Reason (evidence)</th>'
+            "<th>Source</th></tr></thead><tbody>" + "".join(rows) + "</tbody></table>")
+
+
+def _finding(f: dict) -> str:
+    fam = f.get("family") or {}
+    fam_txt = "; ".join(f"{k}: {v.get('genotype')} ({v.get('zygosity')})" for k, v in fam.items()) or "—"
+    o = f.get("original") or {}
+    orig = ""
+    if o and (o.get("pos") != f.get("pos") or o.get("ref") != f.get("ref") or list(o.get("alts") or []) != [f.get("alt")]):
+        orig = f"input record {o.get('pos')} {o.get('ref')}>{','.join(o.get('alts') or [])} (ALT {o.get('allele_index')})"
+    facts = [
+        ("Position", f"{f.get('chrom')}:{f.get('pos')} {f.get('ref')}>{f.get('alt')}" + (f" — {orig}" if orig else "")),
+        ("HGVS", " ".join(x for x in (f.get("transcript") and f"{f['transcript']}:{f.get('hgvs_c') or ''}", f.get("hgvs_p")) if x) or "—"),
+        ("Consequence", fmt(f.get("consequence"))), ("Exon / intron", f"{fmt(f.get('exon'))} / {fmt(f.get('intron'))}"),
+        ("Zygosity (GT)", f"{fmt(f.get('zygosity'))} ({fmt(f.get('genotype'))}{', phased' if f.get('phased') else ''})"),
+        ("Depth / GQ / allele balance", f"{fmt(f.get('dp'))} / {fmt(f.get('gq'))} / {fmt(f.get('allele_balance'))}"),
+        ("Filters / quality flags", f"{fmt(f.get('filters'))} / {fmt(f.get('quality_flags'), 'none')}"),
+        ("Family", fam_txt),
+        ("Points / posterior", f"{fmt(f.get('points'))} / {fmt(f.get('posterior'))}"),
+        ("Rules / points / Bayes", f"{fmt(f.get('rule_class'))} ({fmt(f.get('rule'))}) / {fmt(f.get('point_class'))} / {fmt(f.get('bayes_class'))}"),
+        ("Interpretation status", fmt(f.get("interpretation_status"))),
+    ]
+    if f.get("classification_note"):
+        facts.append(("Note", f["classification_note"]))
+    rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in facts)
+    return (f'<h4 id="finding-{e(f.get("id"))}">Finding {e(f.get("id"))}: {e(f.get("hgvs_c") or "")} {e(f.get("hgvs_p") or "")}'
+            f' {_class_scale(f.get("classification"))}</h4>'
+            f'<p>Met criteria: <span class="crit">{e(criteria_compact(f))}</span></p>'
+            f'<table class="facts">{rows}</table>'
+            f"<details open><summary>All 28 criteria</summary>{_criteria_table(f)}</details>")
+
+
+def _gene_section(result: dict, g: dict) -> str:
+    st = g.get("cascade_step") or {}
+    pm = g.get("phenotype_match") or {}
+    fs = gene_findings(result, g)
+    sym = g.get("symbol")
+    parts = [f'<section class="gene" id="gene-{e(sym)}"><h3>{e(g.get("rank"))}. {e(sym)} '
+             f'<span class="muted">{e(g.get("hgnc_id") or "")}</span></h3>']
+    parts.append(f'<p>{e(g.get("reason") or "")}</p>')
+    parts.append(f'<p><b>Genotype fit:</b> {e(g.get("genotype_fit"))}'
+                 + (f" — phase: {e(g.get('phase'))}" if g.get("phase") else "")
+                 + f'. <b>Inheritance:</b> {e("/".join(g.get("inheritance") or []) or "unknown")}.'
+                 + (f' <b>Mechanism:</b> {e(", ".join(g["mechanisms"]))}.' if g.get("mechanisms") else "")
+                 + (f' <b>Conditions:</b> {e("; ".join(g["conditions"]))}.' if g.get("conditions") else "") + "</p>")
+    if st:
+        parts.append(f'<h4>Where it acts: {e(st.get("title") or st.get("id"))}</h4><div class="explain">'
+                     f'<div><b>What the gene does</b>{e(st.get("text") or "No explanation in the panel.")}</div>'
+                     f'<div class="breaks"><b>What a defect breaks</b>{e(st.get("breaks") or "Not described in the panel.")}</div></div>')
+    for n in g.get("notes") or []:
+        parts.append(f'<p class="muted">Note: {e(n)}</p>')
+    parts.append("<h4>Phenotype match</h4>")
+    cal = pm.get("calibrated")
+    parts.append(f'<p>{e(pm.get("summary") or "")} (calibrated {e(f"{cal:.2f}" if isinstance(cal, (int, float)) else "n/a")}, '
+                 f'raw {e(fmt(pm.get("score")))})</p>')
+    mt = pm.get("matched_terms") or []
+    if mt:
+        parts.append("<table><thead><tr><th>Patient term</th><th>Gene term</th><th>Information content</th></tr></thead><tbody>"
+                     + "".join(f'<tr><td>{e(m.get("patient"))} {e(m.get("patient_label") or "")}</td>'
+                               f'<td>{e(m.get("gene_term"))} {e(m.get("gene_label") or "")}</td><td class="num">{e(fmt(m.get("ic")))}</td></tr>' for m in mt)
+                     + "</tbody></table>")
+    if pm.get("conflicting_terms"):
+        parts.append(f'<p>Excluded in the patient but typical of the gene: {e(", ".join(map(str, pm["conflicting_terms"])))}</p>')
+    if fs:
+        fig = svg.protein_svg(result, g, fs, fig_id=f"irdt-protein-{g.get('rank')}")
+        parts.append(f'<figure>{fig}<figcaption>Figure: {e(sym)} protein sketch with the '
+                     "position of each finding (domains only when the panel gives them).</figcaption></figure>")
+    for f in fs:
+        parts.append(_finding(f))
+    if g.get("next_steps"):
+        parts.append("<h4>Next steps for this gene</h4><ul>" + "".join(f"<li>{e(s)}</li>" for s in g["next_steps"]) + "</ul>")
+    parts.append("</section>")
+    return "".join(parts)
+
+
+def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) -> str:
+    """The whole report as one HTML document (str)."""
+    case = result.get("case") or {}
+    sample = result.get("sample") or {}
+    ph = result.get("phenotype") or {}
+    status = case.get("status") or "UNKNOWN"
+    out = ['<!DOCTYPE html><html lang="en"><head><meta charset="utf-8">'
+           '<meta name="viewport" content="width=device-width, initial-scale=1">'
+           "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; img-src data:\">"
+           f"<title>irdtriage case report — {e(sample.get('id'))}</title><style>{CSS}</style></head><body>"]
+    out.append(f'<header><h1>Inherited retinal disease gene triage — case {e(sample.get("id"))}</h1>'
+               f'<p class="sub">Decision-support report written by irdtriage {e(__version__)} from result schema {e(result.get("schema_version"))}.</p>')
+    out.append(_caution_box(result))
+    out.append(_meta(result) + "</header>")
+    out.append(f'<section id="case"><h2>Case call</h2><div class="call"><span class="status {e(status)}">{e(status)}</span>'
+               f"<div>{e(case.get('summary'))}</div></div>")
+    if ph.get("retinal_fit"):
+        rf = ph["retinal_fit"]
+        out.append(f'<p class="muted">Phenotype check: {e(rf.get("summary") or "")}</p>')
+    out.append("</section>")
+    out.append(f'<section id="genes"><h2>Gene hypotheses, ranked</h2>{_genes_table(result)}</section>')
+    out.append(f'<section id="cascade"><h2>Where the top genes act in light detection</h2><figure>{svg.cascade_svg(result, cascade_steps)}'
+               "<figcaption>Figure: the light response from photon capture to the retinal neurons, with the steps that switch it off, "
+               "the visual cycle and photoreceptor upkeep. Hatched boxes with a thick outline (◆) are served by the top-ranked genes.</figcaption>"
+               "</figure></section>")
+    out.append('<section id="details"><h2>Gene hypotheses in detail</h2>')
+    for g in result.get("genes") or []:
+        out.append(_gene_section(result, g))
+    out.append("</section>")
+    terms = "".join(f"<li>{e(t.get('id'))} {e(t.get('label') or '')}</li>" for t in ph.get("present") or [])
+    excl = "".join(f"<li>{e(t.get('id'))} {e(t.get('label') or '')}</li>" for t in ph.get("excluded") or [])
+    out.append(f'<section id="phenotype"><h2>Phenotype given</h2><p class="muted">Source: {e(ph.get("source") or "none")}</p>'
+               f'<h4>Present</h4><ul>{terms or "<li>none given</li>"}</ul>'
+               + (f"<h4>Excluded</h4><ul>{excl}</ul>" if excl else "") + "</section>")
+    steps = case.get("next_steps") or []
+    out.append('<section id="next"><h2>Next steps</h2><ul>' + ("".join(f"<li>{e(s)}</li>" for s in steps) or "<li>none suggested</li>") + "</ul></section>")
+    warnings = result.get("warnings") or []
+    counts = result.get("counts") or {}
+    out.append('<section id="warnings"><h2>Warnings and counts</h2><ul>' + ("".join(f"<li>{e(w)}</li>" for w in warnings) or "<li>no warnings</li>")
+               + "</ul><table><tbody>" + "".join(f"<tr><th>{e(k.replace('_', ' '))}</th><td class=\"num\">{e(v)}</td></tr>" for k, v in counts.items())
+               + "</tbody></table></section>")
+    out.append('<section id="methods"><h2>Methods and limitations</h2><h4>What the classification is based on</h4><ul>'
+               + "".join(f"<li>{e(m)}</li>" for m in METHODS) + "</ul><h4>What is not automated or not covered</h4><ul>"
+               + "".join(f"<li>{e(m)}</li>" for m in LIMITS) + "</ul></section>")
+    out.append(f'<section id="cautions"><h2>Cautions</h2>{_caution_box(result)}</section>')
+    out.append(f"<footer>irdtriage {e(__version__)} · panel {e((result.get('panel') or {}).get('name'))} "
+               f"{e((result.get('panel') or {}).get('version'))} · rule set {e((result.get('rules') or {}).get('name'))} "
+               f"{e((result.get('rules') or {}).get('version'))} · {e(result.get('genome_build'))} · report generated offline; "
+               "no patient data left this machine to make it.</footer>")
+    out.append("</body></html>\n")
+    return "".join(out)
