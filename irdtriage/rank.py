@@ -1,0 +1,341 @@
+"""Rank gene hypotheses, call the case, and give each finding an interpretation status.
+
+Ranking model
+-------------
+Each gene hypothesis gets ``score = fit weight x class weight x phenotype weight``; every
+factor lies in 0..1 and the score rises monotonically with each of them.
+
+* **fit weight** (genotype fit, from :mod:`irdtriage.genotype`): biallelic in trans 1.0,
+  hemizygous 1.0, de novo 1.0, homozygous 0.95 (a deletion on the other allele can mimic
+  it), heterozygous in a dominant gene 0.85, biallelic phase unknown 0.6, single
+  heterozygous in a recessive gene 0.05 (a carrier state explains nothing by itself), no
+  qualifying finding 0.
+* **class weight**: the *weakest* allele the fit needs (a biallelic genotype is only as
+  strong as its weaker allele): Pathogenic 1.0, Likely pathogenic 0.9, Uncertain
+  significance 0.5, Likely benign / Benign 0.
+* **phenotype weight**: ``0.25 + 0.75 x calibrated`` from the phenotype match (0..1,
+  comparable across genes); 0.625 — the value of a calibrated match of 0.5 — when no
+  phenotype was given; halved when the person has excluded terms that are hallmarks of
+  the gene (``conflicting_terms``).
+
+With these weights a carrier state (at most 0.05 x 1 x 1 = 0.05) always ranks below any
+complete or biallelic fit whose phenotype match is at least 0.5 (at least 0.6 x 0.5 x
+0.625 x 0.5 = 0.094). Ties are broken by fit preference, then class weight, then gene
+symbol, so the order is deterministic.
+
+Case call (GA4GH Phenopacket status words)
+------------------------------------------
+* ``SOLVED``: a gene hypothesis has a complete genotype fit (biallelic in trans,
+  homozygous, hemizygous, heterozygous in a dominant gene, de novo) made only of
+  Pathogenic / Likely pathogenic alleles, and the phenotype fits (calibrated match >= 0.5,
+  no conflicting hallmark, and the phenotype is not judged non-retinal).
+* ``IN_PROGRESS``: otherwise, when a candidate exists: a complete fit that includes a
+  VUS, a biallelic genotype of unknown phase, a P/LP complete fit whose phenotype is
+  unknown or poor, or a single heterozygous allele in a recessive gene with a strong
+  phenotype match (P/LP single hits also count when no phenotype was given).
+* ``UNSOLVED``: nothing of the above.
+
+Per-finding statuses: CAUSATIVE for the P/LP alleles of the solving hypothesis;
+CONTRIBUTORY for the P/LP alleles of a second complete, phenotype-fitting hypothesis (a
+possible second diagnosis, rare); CANDIDATE for the alleles of candidate hypotheses;
+REJECTED for Benign / Likely benign findings and for single heterozygous alleles in
+recessive genes whose phenotype match is poor; UNKNOWN_STATUS otherwise (including calls
+that failed quality thresholds).
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Iterable, Optional, Sequence
+
+from . import CAUTION
+from .genotype import FIT_PREFERENCE
+from .models import Finding, Gene, GeneHypothesis, Panel
+
+FIT_WEIGHT = {
+    "biallelic in trans": 1.0,
+    "hemizygous": 1.0,
+    "de novo": 1.0,
+    "homozygous": 0.95,
+    "heterozygous in a dominant gene": 0.85,
+    "biallelic phase unknown": 0.6,
+    "single heterozygous in a recessive gene": 0.05,
+    "no qualifying finding": 0.0,
+}
+CLASS_WEIGHT = {
+    "Pathogenic": 1.0,
+    "Likely pathogenic": 0.9,
+    "Uncertain significance": 0.5,
+    "Likely benign": 0.0,
+    "Benign": 0.0,
+}
+NO_PHENOTYPE_WEIGHT = 0.625
+CONFLICT_FACTOR = 0.5
+PHENOTYPE_FITS = 0.5  # calibrated match from which the phenotype counts as fitting the gene
+
+COMPLETE_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")
+BIALLELIC_FITS = ("biallelic in trans", "biallelic phase unknown")
+STRONG = ("Pathogenic", "Likely pathogenic")
+QUALIFYING = ("Pathogenic", "Likely pathogenic", "Uncertain significance")
+
+
+@dataclass
+class CaseCall:
+    status: str  # one of models.CASE_STATUSES
+    summary: str  # one sentence
+    next_steps: list[str] = field(default_factory=list)
+    phenotype_fits_retina: Optional[bool] = None  # the case-level phenotype verdict the call used
+    caution: str = CAUTION
+
+
+# ---------------------------------------------------------------------------
+def _cls(f: Finding) -> Optional[str]:
+    return f.classification.classification if f.classification is not None else None
+
+
+def fit_findings(h: GeneHypothesis) -> list[Finding]:
+    """The findings that make up the hypothesis's genotype fit."""
+    a = getattr(h, "assessment", None)
+    ids = list(getattr(a, "qualifying_ids", []) or [])
+    if ids:
+        by_id = {f.id: f for f in h.findings}
+        return [by_id[i] for i in ids if i in by_id]
+    pool = [f for f in h.findings if f.passes_quality and _cls(f) in QUALIFYING]
+    pool.sort(key=lambda f: (-CLASS_WEIGHT[_cls(f)], f.id))
+    if h.genotype_fit == "no qualifying finding":
+        return []
+    return pool[:2] if h.genotype_fit in BIALLELIC_FITS else pool[:1]
+
+
+def _class_weight(h: GeneHypothesis) -> float:
+    fs = fit_findings(h)
+    if not fs:
+        return 0.0
+    return min(CLASS_WEIGHT.get(_cls(f) or "", 0.0) for f in fs)
+
+
+def _pheno_weight(h: GeneHypothesis) -> float:
+    m = h.phenotype_match
+    if m is None:
+        return NO_PHENOTYPE_WEIGHT
+    c = min(max(float(m.calibrated), 0.0), 1.0)
+    w = 0.25 + 0.75 * c
+    if m.conflicting_terms:
+        w *= CONFLICT_FACTOR
+    return w
+
+
+def _fit_weight(h: GeneHypothesis, gene: Optional[Gene]) -> float:
+    fit = h.genotype_fit
+    if gene is not None and fit == "heterozygous in a dominant gene" and not gene.dominant:
+        fit = "single heterozygous in a recessive gene"  # inconsistent input: score as a carrier state
+    return FIT_WEIGHT.get(fit, 0.0)
+
+
+def score_hypothesis(h: GeneHypothesis, gene: Optional[Gene]) -> float:
+    return round(_fit_weight(h, gene) * _class_weight(h) * _pheno_weight(h), 6)
+
+
+def _reason(h: GeneHypothesis, gene: Optional[Gene]) -> str:
+    fs = fit_findings(h)
+    alleles = ", ".join(f"{f.id} {_cls(f)}" for f in fs) or "none"
+    phase = f" ({h.phase})" if h.phase and h.phase not in ("homozygous",) else ""
+    inh = "/".join(gene.inheritance) if gene is not None else "?"
+    m = h.phenotype_match
+    if m is None:
+        ph = "no phenotype given"
+    else:
+        ph = f"phenotype match {m.calibrated:.2f}"
+        if m.conflicting_terms:
+            ph += f", conflicting: {', '.join(m.conflicting_terms)}"
+    return (f"{h.genotype_fit}{phase} in a {inh} gene; alleles: {alleles}; {ph}; score "
+            f"{_fit_weight(h, gene):.2f} x {_class_weight(h):.2f} x {_pheno_weight(h):.3f} = {h.score:.3f}")
+
+
+def rank_hypotheses(hypotheses: Iterable[GeneHypothesis], panel: Optional[Panel]) -> list[GeneHypothesis]:
+    """Score, order and number the hypotheses (the objects get ``score``, ``rank`` and ``reason``)."""
+    genes = panel.genes if panel is not None else {}
+    hs = list(hypotheses)
+    for h in hs:
+        h.score = score_hypothesis(h, genes.get(h.symbol))
+    hs.sort(key=lambda h: (-h.score, FIT_PREFERENCE.get(h.genotype_fit, 99), -_class_weight(h), h.symbol))
+    for i, h in enumerate(hs, 1):
+        h.rank = i
+        h.reason = _reason(h, genes.get(h.symbol))
+    return hs
+
+
+# ---------------------------------------------------------------------------
+def _pheno_state(h: GeneHypothesis, fits_retina: Optional[bool]) -> Optional[bool]:
+    """True fits, False does not, None unknown (no phenotype given)."""
+    m = h.phenotype_match
+    if fits_retina is False:
+        return False
+    if m is None:
+        return None if fits_retina is None else False
+    return m.calibrated >= PHENOTYPE_FITS and not m.conflicting_terms
+
+
+def _all_strong(h: GeneHypothesis) -> bool:
+    fs = fit_findings(h)
+    return bool(fs) and all(_cls(f) in STRONG for f in fs)
+
+
+def _solving(h: GeneHypothesis, fits_retina) -> bool:
+    return h.genotype_fit in COMPLETE_FITS and _all_strong(h) and _pheno_state(h, fits_retina) is True
+
+
+def _candidate(h: GeneHypothesis, fits_retina) -> bool:
+    p = _pheno_state(h, fits_retina)
+    if h.genotype_fit in COMPLETE_FITS:
+        return not _solving(h, fits_retina) and bool(fit_findings(h))
+    if h.genotype_fit == "biallelic phase unknown":
+        return True
+    if h.genotype_fit == "single heterozygous in a recessive gene":
+        return p is True or (p is None and _all_strong(h))
+    return False
+
+
+def _mode(h: GeneHypothesis) -> str:
+    return getattr(getattr(h, "assessment", None), "mode", "") or ""
+
+
+def _describe(h: GeneHypothesis) -> str:
+    fs = fit_findings(h)
+    alleles = " + ".join(f"{(f.annotation.hgvs_c or f.variant.key)} ({_cls(f)})" for f in fs)
+    return f"{h.symbol} {h.genotype_fit}" + (f" ({h.phase})" if h.phase and h.phase != "homozygous" else "") + \
+        (f": {alleles}" if alleles else "")
+
+
+def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[bool]) -> CaseCall:
+    solving = [h for h in ranked if _solving(h, phenotype_fits_retina)]
+    candidates = [h for h in ranked if _candidate(h, phenotype_fits_retina)]
+    steps: list[str] = []
+
+    if solving:
+        top = solving[0]
+        status = "SOLVED"
+        m = top.phenotype_match
+        summary = (f"{_describe(top)} fits the gene's inheritance and the phenotype "
+                   f"(match {m.calibrated:.2f}).") if m is not None else f"{_describe(top)} fits inheritance and phenotype."
+        focus = solving[:2] + [h for h in candidates if h.rank <= 3][:2]
+    elif candidates:
+        top = candidates[0]
+        status = "IN_PROGRESS"
+        summary = f"Candidate explanation, not yet complete: {_describe(top)} - {_missing(top, phenotype_fits_retina)}."
+        focus = candidates[:3]
+    else:
+        status = "UNSOLVED"
+        n = sum(1 for h in ranked if h.findings)
+        summary = (f"No finding in the panel genes explains the phenotype ({n} gene(s) with findings, none with a "
+                   f"qualifying genotype that fits).")
+        focus = []
+
+    for h in focus:
+        steps.extend(_gene_steps(h, phenotype_fits_retina))
+    if solving or candidates:
+        genes = ", ".join(dict.fromkeys(h.symbol for h in focus))
+        steps.append(f"Confirm the reported {genes} finding(s) with an orthogonal method (e.g. Sanger sequencing) "
+                     f"in an accredited laboratory before clinical use.")
+    carriers = [h for h in ranked if h.genotype_fit == "single heterozygous in a recessive gene" and _all_strong(h)
+                and h not in focus]
+    if carriers:
+        steps.append("Carrier result(s) in " + ", ".join(h.symbol for h in carriers) + ": not an explanation on "
+                     "their own, but relevant to family planning (partner testing) and cascade testing of relatives.")
+    if status == "UNSOLVED" and phenotype_fits_retina is not False:
+        steps.append("Check coverage of hard-to-sequence regions (e.g. RPGR ORF15, poorly covered by short reads - "
+                     "common practice) and look for copy-number variants; consider genome sequencing and periodic "
+                     "reanalysis.")
+    if phenotype_fits_retina is False:
+        steps.append("The phenotype does not look like a retinal disease: review the HPO terms or consider a "
+                     "different gene panel.")
+    if phenotype_fits_retina is None and all(h.phenotype_match is None for h in ranked):
+        steps.append("No phenotype was given: add HPO terms so the genotype fits can be weighed against the "
+                     "clinical picture.")
+    return CaseCall(status, summary, list(dict.fromkeys(steps)), phenotype_fits_retina)
+
+
+def _missing(h: GeneHypothesis, fits_retina) -> str:
+    fs = fit_findings(h)
+    if any(_cls(f) == "Uncertain significance" for f in fs):
+        return "includes a variant of uncertain significance"
+    if h.genotype_fit == "biallelic phase unknown":
+        return "phase of the two alleles unknown"
+    if h.genotype_fit == "single heterozygous in a recessive gene":
+        return "only one allele found in a recessive gene"
+    p = _pheno_state(h, fits_retina)
+    return "phenotype not given" if p is None else "phenotype does not fit well"
+
+
+def _gene_steps(h: GeneHypothesis, fits_retina) -> list[str]:
+    g = h.symbol
+    out: list[str] = []
+    a = getattr(h, "assessment", None)
+    fs = fit_findings(h)
+    if h.genotype_fit == "biallelic phase unknown":
+        out.append(f"Test both parents (or phase by long reads) to show whether the two {g} alleles are in trans.")
+    if h.genotype_fit == "single heterozygous in a recessive gene" and not getattr(a, "manifesting_carrier_possible",
+                                                                                    False):
+        out.append(f"Look for a second {g} allele missed by the test: copy-number analysis, deep-intronic and "
+                   f"structural variants (genome sequencing or RNA studies).")
+        if g == "ABCA4":
+            out.append("ABCA4: deep-intronic alleles and hypomorphic alleles such as c.5603A>T p.(Asn1868Ile) are a "
+                       "known source of missed second hits (from memory).")
+        if g == "USH2A":
+            out.append("USH2A: check coverage of exon 13 (site of the frequent c.2299delG allele) and the "
+                       "deep-intronic c.7595-2144A>G (from memory).")
+    if getattr(a, "manifesting_carrier_possible", False):
+        out.append(f"Heterozygous {g} allele in an X-linked recessive gene: offer a retinal examination (possible "
+                   f"manifesting carrier) and cascade testing of at-risk male relatives.")
+    if getattr(a, "possible_deletion", False):
+        out.append(f"Apparent {g} homozygosity: test the parents and check copy number to rule out a deletion on "
+                   f"the other allele.")
+    if any(_cls(f) == "Uncertain significance" for f in fs):
+        out.append(f"Resolve the {g} variant(s) of uncertain significance: segregation in relatives, functional or "
+                   f"RNA studies, and reclassification as evidence accrues.")
+    if h.genotype_fit == "de novo":
+        out.append(f"The {g} de novo call assumes the stated parents: parentage is not confirmed by this tool.")
+    if g == "RPE65" and h.genotype_fit in ("biallelic in trans", "homozygous", "biallelic phase unknown") \
+            and _all_strong(h):
+        out.append("Biallelic RPE65 variants: the person may be assessed for the approved gene therapy voretigene "
+                   "neparvovec (requires confirmed biallelic pathogenic variants and enough viable retinal cells; "
+                   "local criteria apply).")
+    if g == "RPGR" and h.genotype_fit != "no qualifying finding":
+        out.append("RPGR ORF15 is repetitive and poorly covered by short reads (common practice): confirm with a "
+                   "targeted method.")
+    return out
+
+
+# ---------------------------------------------------------------------------
+def assign_interpretation_status(ranked: Sequence[GeneHypothesis], call: Optional[CaseCall] = None,
+                                 phenotype_fits_retina: Optional[bool] = None) -> dict[str, str]:
+    """Set ``Finding.interpretation_status`` on every finding of the ranked hypotheses; return id -> status."""
+    if phenotype_fits_retina is None and call is not None:
+        phenotype_fits_retina = call.phenotype_fits_retina
+    out: dict[str, str] = {}
+    solved_done = False
+    for h in ranked:
+        fit_ids = {f.id for f in fit_findings(h)}
+        solving = _solving(h, phenotype_fits_retina)
+        candidate = _candidate(h, phenotype_fits_retina)
+        p = _pheno_state(h, phenotype_fits_retina)
+        for f in h.findings:
+            c = _cls(f)
+            if c in ("Benign", "Likely benign"):
+                st = "REJECTED"
+            elif not f.passes_quality or f.id not in fit_ids:
+                st = "UNKNOWN_STATUS"
+            elif solving and not solved_done:
+                st = "CAUSATIVE"
+            elif solving:
+                st = "CONTRIBUTORY"
+            elif candidate:
+                st = "CANDIDATE"
+            elif h.genotype_fit == "single heterozygous in a recessive gene" and p is False:
+                st = "REJECTED"
+            else:
+                st = "UNKNOWN_STATUS"
+            f.interpretation_status = st
+            out[f.id] = st
+        if solving:
+            solved_done = True
+    return out
