@@ -56,6 +56,15 @@ class QualityThresholds:
 
 @dataclass
 class VcfIntake:
+    """What read_vcf found.
+
+    counts: records_read (records htslib/the stream looked at: panel regions only when
+    indexed, every record when streamed), alleles (ALT alleles split out of the records
+    that reached the panel filter), in_panel (alleles kept), no_alt_in_sample (kept alleles
+    the proband carries no copy of), failed_quality (proband carries it but a quality flag
+    is raised — see quality_flags), symbolic_skipped ('*', <DEL>, breakends...).
+    """
+
     path: str
     build: Optional[str]
     samples: list[str]
@@ -533,18 +542,17 @@ def read_vcf(
         if indexed:
             mode = "indexed"
             available = set(vf.index.keys()) if vf.index is not None else set(header.contigs)
-            seen: set = set()
             for chrom in sorted(merged, key=_chrom_order):
                 contig = _file_contig(chrom, available)
                 if contig is None:
                     continue
+                prev_end = 0
                 for start, end in merged[chrom]:
                     for rec in vf.fetch(contig, start - 1, end):
-                        key = (rec.chrom, rec.pos, rec.ref, rec.alts)
-                        if key in seen:
-                            continue
-                        seen.add(key)
+                        if rec.pos <= prev_end:
+                            continue  # long record already returned by the previous interval
                         variants.extend(conv.convert(rec, counts))
+                    prev_end = end
         elif kind == "bcf":
             mode = "streamed (BCF)"
             lookup = {}

@@ -322,3 +322,14 @@ def test_trim_alleles():
     assert trim_alleles(100, "CTT", "CT") == (100, "CT", "C")
     assert trim_alleles(100, "ACGT", "AGGT") == (101, "C", "G")
     assert trim_alleles(100, "A", "AT") == (100, "A", "AT")
+
+
+def test_record_spanning_two_intervals_read_once(tmp_path):
+    # a deletion reaching from RPE65's padded interval into a second panel gene placed 96 bp
+    # later (gene made up for the test) is one record in both access modes
+    near = Gene("NEAR", "HGNC:0", "test gene", "", "", "", "+", Span("1", 68450050, 68451000), None, (), (), (), "")
+    panel = Panel("t", "0", "", {"RPE65": RPE65, "NEAR": near}, {})
+    rec = [f"1\t68449900\t.\t{'A' * 200}\tA\t50\tPASS\tAC=1;AF=0.5;AN=2;RC=5,5\tGT:AD:DP:GQ\t0/1:5,5:10:40"]
+    p = write(tmp_path, "span.vcf", vcf_text(rec))
+    assert len(read_vcf(p, panel, padding=0).variants) == 1
+    assert len(read_vcf(bgzip_index(p), panel, padding=0).variants) == 1
