@@ -266,7 +266,14 @@ def _segregation(gene, f, others, proband, sex_n, pedigree, fully_penetrant, bui
 
     informative, against, skipped, lod = [], [], [], 0.0
     if recessive_model:
-        partner = partners[0] if pc.alt_copies < 2 and partners else None
+        partner = None
+        if pc.alt_copies < 2 and partners:
+            # prefer the partner shown in trans, then the strongest class
+            order = {"trans": 0, "unknown": 1, "cis": 2}
+            partner = min(partners, key=lambda g: (
+                order[phase_between(f, g, proband, pedigree.individuals[proband].mother,
+                                    pedigree.individuals[proband].father, min_dp, min_gq).phase],
+                _class(g) not in ("Pathogenic", "Likely pathogenic"), g.id))
         sibs = set(pedigree.full_siblings(proband))
         for r in rel:
             person = pedigree.individuals[r]
