@@ -599,6 +599,7 @@ def read_vcf(
         "build_evidence": evidence,
         "access": mode,
         "annotation_fields": sorted(layouts),
+        "annotation_layouts": layouts,  # {"CSQ"/"ANN": [field names]} for pick_annotation
         "contigs": len(header.contigs),
     }
     return VcfIntake(

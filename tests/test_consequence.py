@@ -150,3 +150,11 @@ def test_severity_order():
     assert most_severe(["intron_variant&splice_region_variant", "missense_variant"]) == "missense_variant"
     assert most_severe([]) is None
     assert sort_terms(["made_up_term&synonymous_variant"]) == ("synonymous_variant", "made_up_term")
+
+
+def test_intake_carries_layouts(tmp_path):
+    rec = "1\t68431000\t.\tC\tT\t50\tPASS\tAC=1;AF=0.5;AN=2;CSQ=T|missense_variant" + GT
+    res = read_vcf(annotated_vcf(tmp_path, [rec], CSQ_HEADER), PANEL)
+    assert res.header_info["annotation_layouts"]["CSQ"] == CSQ_FIELDS.split("|")
+    a = pick_annotation(res.variants[0], res.header_info["annotation_layouts"], PANEL, ["RPE65"])
+    assert a.consequence == ("missense_variant",) and a.gene == "RPE65"
