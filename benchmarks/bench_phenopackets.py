@@ -97,7 +97,7 @@ def main(argv=None) -> int:
                 vcf = write_case_vcf(case, Path(tmp) / f"{case.sample}.vcf", pick_decoys(case, all_cases))
                 try:
                     res = triage(str(vcf), sample=case.sample, phenopacket=str(pp_path),
-                                 out_dir=str(Path(tmp) / case.sample))
+                                 phenotype_matcher=matcher)
                     syms = [g["symbol"] for g in res.get("genes", [])]
                     rank = syms.index(case.gene) + 1 if case.gene in syms else 999
                     r["pipe_rank"].append(rank)
