@@ -99,12 +99,11 @@ def protein_position(finding: dict) -> Optional[int]:
     if m:
         return int(m.group(1))
     ev = finding.get("evidence") or {}
-    for key in ("protein_position", "protein_pos"):
-        v = ev.get(key)
+    for v in (finding.get("protein_position"), ev.get("protein_position"), ev.get("protein_pos")):
         if isinstance(v, int):
             return v
-        if isinstance(v, str) and v.split("-")[0].isdigit():
-            return int(v.split("-")[0])
+        if isinstance(v, str) and v.split("-")[0].split("/")[0].isdigit():
+            return int(v.split("-")[0].split("/")[0])
     return None
 
 

@@ -67,7 +67,7 @@ def cascade_svg(result: dict, cascade_steps: Optional[Iterable[dict]] = None, to
     ch = chain(steps)
     lanes = [("recovery", "switching the response off"), ("visual_cycle", "visual cycle: recharging opsin"),
              ("module", "photoreceptor upkeep")]
-    W, bw, bh, gap = 1000, 120, 64, 20
+    W, bw, bh, gap = 1000, 120, 72, 20
     per_row = max(1, (W - 40 + gap) // (bw + gap))
     rows = [ch[i:i + per_row] for i in range(0, len(ch), per_row)] or [[]]
     y0 = 40
@@ -93,30 +93,34 @@ def cascade_svg(result: dict, cascade_steps: Optional[Iterable[dict]] = None, to
         y += row_h
     if ch:
         parts.insert(0, _text_block(20, 26, ["Light response, in order (rod and cone photoreceptors → retinal neurons)"], 13, "bold", "start", TEAL))
-    # lanes beside the chain, side by side in one band (a new band when the width runs out)
-    x = 20.0
-    band_top = y + 4
-    used = False
+    # lanes beside the chain: side by side while they fit, a lane wider than the figure wraps
+    inner = W - 40
+    x, band_top, band_rows, used = 20.0, y + 4, 1, False
     for kind, label in lanes:
         lane = [s for s in steps if s.get("kind") == kind]
         if not lane:
             continue
-        need = max(len(lane) * (bw + gap) - gap, min(len(label) * 7.2, W - 40))
-        if used and x + need > W - 20:
-            x, band_top = 20.0, band_top + row_h + 24
-        parts.append(_text_block(x, band_top + 12, _wrap(label, int(max(need, bw) / 7.2), 1), 13, "bold", "start", TEAL))
+        per = max(1, (inner + gap) // (bw + gap))
+        nrows = -(-len(lane) // per)
+        need = max(min(len(lane), per) * (bw + gap) - gap, len(label) * 7.4)
+        if used and (x + need > W - 20 or nrows > 1):
+            x, band_top, band_rows = 20.0, band_top + band_rows * row_h + 26, 1
+        parts.append(_text_block(x, band_top + 12, [label], 13, "bold", "start", TEAL))
         for j, s in enumerate(lane):
-            bx = x + j * (bw + gap)
-            if bx + bw > W - 10:
-                break
+            bx = x + (j % per) * (bw + gap)
+            by = band_top + 22 + (j // per) * row_h
             is_hit = s["id"] in hit
-            parts.append(_box(bx, band_top + 22, bw, bh, s, is_hit, hit.get(s["id"], [])))
+            parts.append(_box(bx, by, bw, bh, s, is_hit, hit.get(s["id"], [])))
             if is_hit:
                 hit_titles.append(f"{s.get('title', s['id'])} ({', '.join(hit[s['id']])})")
+        band_rows = max(band_rows, nrows)
+        if nrows > 1:
+            x, band_top, band_rows = 20.0, band_top + nrows * row_h + 26, 1
+            used = False
+            continue
         x += need + 2 * gap
         used = True
-    if used:
-        y = band_top + 22 + bh + 24
+    y = band_top + (22 + band_rows * row_h if used else 0)
     H = int(y + 2)
     title = "Light-response cascade with the steps of the top-ranked genes"
     desc = ("Steps of the light response in order" + (", plus " + ", ".join(l for k, l in lanes if any(s.get('kind') == k for s in steps)) if steps else "")
@@ -135,7 +139,10 @@ def _box(x: float, y: float, w: float, h: float, s: dict, is_hit: bool, genes: l
     out = [f'<g class="{"irdt-step irdt-hit" if is_hit else "irdt-step"}" data-step="{_e(s["id"])}">'
            f'<rect x="{x}" y="{y}" width="{w}" height="{h}" rx="9" fill="{fill}" stroke="{stroke}" stroke-width="{sw}"/>']
     title = s.get("title") or s["id"]
-    lines = _wrap(title, 17, 3)
+    for prefix in ("visual cycle:", "recovery:"):  # the lane label already says it
+        if number is None and title.lower().startswith(prefix):
+            title = title[len(prefix):].strip()
+    lines = _wrap(title, 17, 4)
     ty = y + h / 2 - (len(lines) - 1) * 7 + 4
     if number is not None:
         out.append(f'<circle cx="{x + 12}" cy="{y + 12}" r="9" fill="{INK if is_hit else "#ffffff"}" stroke="{INK}" stroke-width="1"/>')
