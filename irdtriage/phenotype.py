@@ -112,6 +112,7 @@ class PhenotypeMatcher:
         self._info: dict[str, _TermInfo] = {}
         self._null: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
         self._pool_best: Optional[np.ndarray] = None
+        self._last_matches: dict[str, PhenotypeMatch] = {}
 
     # ---- per-term helpers -------------------------------------------------------------
     def term_info(self, tid: str) -> _TermInfo:
@@ -251,6 +252,7 @@ class PhenotypeMatcher:
             pm.z = round(float(z[i]), 3)  # type: ignore[attr-defined]
             pm.gene_percentile = round(float(gene_pct[i]), 4)  # type: ignore[attr-defined]
             out[sym] = pm
+        self._last_matches = out
         return out
 
     def ranked(self, profile: PhenotypeProfile) -> list[PhenotypeMatch]:
@@ -269,7 +271,13 @@ class PhenotypeMatcher:
         """
         return retinal_fit(profile)
 
-    def pp4(self, match: Optional[PhenotypeMatch], gene: str, all_matches=None) -> CriterionResult:
+    def pp4(self, match: Optional[PhenotypeMatch], gene: Any, all_matches=None) -> CriterionResult:
+        """PP4 for ``gene`` (symbol or models.Gene). Without ``all_matches``, the result of the
+        last :meth:`match` call is used for the single-aetiology check when ``match`` came from it."""
+        if all_matches is None and match is not None:
+            last = self._last_matches
+            if last and last.get(match.gene) is match:
+                all_matches = last
         return pp4(match, gene, all_matches)
 
 
@@ -338,8 +346,9 @@ def pp4(
 
     ``all_matches`` (the whole ``PhenotypeMatcher.match`` result) enables the single-aetiology
     check: PP4 is not met when another panel gene reaches the same thresholds.
-    No phenotype terms -> not evaluable (met=None).
+    No phenotype terms -> not evaluable (met=None). ``gene`` may be a symbol or a models.Gene.
     """
+    gene = getattr(gene, "symbol", gene)
     if match is None:
         return CriterionResult("PP4", None, None, f"no phenotype terms to compare with {gene}", {}, "phenotype")
     informative = [m for m in match.matched_terms if m["ic"] >= 2.0]

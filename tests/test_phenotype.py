@@ -117,3 +117,13 @@ def test_pp4_not_met_reason_names_values(matcher):
     ms = matcher.match(PhenotypeProfile(present=("HP:0000478",)))  # only "Abnormality of the eye"
     r = pp4(ms["RHO"], "RHO", ms)
     assert r.met is False and "not specific" in r.reason and r.evidence["calibrated"] == ms["RHO"].calibrated
+
+
+def test_pp4_accepts_gene_object_and_uses_last_match(matcher):
+    from irdtriage.models import Gene, Span
+
+    g = Gene("RHO", "HGNC:10012", "rhodopsin", "NM_000539.3", "ENST00000296271.4", "NP_000530.1", "+",
+             Span("3", 1, 2), None, ("AD",), ("LOF",), (), "opsin")  # shape only; values not checked
+    ms = matcher.match(PhenotypeProfile(present=("HP:0000478",)))
+    r = matcher.pp4(ms["RHO"], g)
+    assert r.met is False and "RHO" in r.reason and "Gene(" not in r.reason
