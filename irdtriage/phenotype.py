@@ -179,7 +179,10 @@ class PhenotypeMatcher:
             rng = np.random.default_rng(NULL_SEED + size)
             k = min(size, pool.shape[1])
             idx = np.stack([rng.choice(pool.shape[1], size=k, replace=False) for _ in range(NULL_SAMPLES)])
-            scores = pool[:, idx].mean(axis=2)  # genes x N
+            # genes x N, in chunks to bound memory (genes x chunk x size floats)
+            scores = np.concatenate(
+                [pool[:, idx[i : i + 100]].mean(axis=2) for i in range(0, NULL_SAMPLES, 100)], axis=1
+            )
             scores.sort(axis=1)
             pooled = np.sort(scores, axis=None)
             self._null[size] = (pooled, scores, scores.mean(axis=1), scores.std(axis=1) + 1e-9)
