@@ -19,7 +19,7 @@ def test_all_formats(tmp_path):
     r = json.loads(FIXTURE.read_text())
     r.pop("cascade")
     steps = [{"id": "photon_capture", "title": "opsin catches light", "kind": "chain", "order": 1},
-             {"id": "pde6", "title": "PDE6 hydrolyses cGMP", "kind": "chain", "order": 2}]
+             {"id": "pde6_effector", "title": "PDE6 hydrolyses cGMP", "kind": "chain", "order": 2}]
     out = write_outputs(r, tmp_path / "out", cascade_steps=steps)
     assert tuple(out) == FORMATS
     names = sorted(p.name for p in (tmp_path / "out").iterdir())

@@ -67,7 +67,7 @@ def cascade_svg(result: dict, cascade_steps: Optional[Iterable[dict]] = None, to
     ch = chain(steps)
     lanes = [("recovery", "switching the response off"), ("visual_cycle", "visual cycle: recharging opsin"),
              ("module", "photoreceptor upkeep")]
-    W, bw, bh, gap = 1000, 120, 72, 20
+    W, bw, bh, gap = 1000, 120, 78, 20
     per_row = max(1, (W - 40 + gap) // (bw + gap))
     rows = [ch[i:i + per_row] for i in range(0, len(ch), per_row)] or [[]]
     y0 = 40
@@ -147,7 +147,7 @@ def _box(x: float, y: float, w: float, h: float, s: dict, is_hit: bool, genes: l
     if number is not None:
         out.append(f'<circle cx="{x + 12}" cy="{y + 12}" r="9" fill="{INK if is_hit else "#ffffff"}" stroke="{INK}" stroke-width="1"/>')
         out.append(_text_block(x + 12, y + 16, [str(number)], 10, "bold", "middle", "#ffffff" if is_hit else INK))
-        ty += 4
+        ty = max(ty + 4, y + 32)  # clear of the number badge
     out.append(_text_block(x + w / 2, ty, lines, 11, "bold" if is_hit else "normal"))
     if is_hit:
         out.append(_text_block(x + w / 2, y + h + 15, ["◆ " + ", ".join(genes)], 12, "bold", "middle", HIT_LINE))

@@ -118,11 +118,13 @@ def _cascade_drawing(result: dict, cascade_steps: Optional[Iterable[dict]], widt
     lines: list[Text] = []
     tokens: list[tuple[str, str]] = []
     for i, s in enumerate(chain(steps)):
-        label = f"{s.get('order') or i + 1} {s.get('title', s['id'])}"
+        title = s.get("title") or s["id"]
+        n = s.get("order") or i + 1
         if s["id"] in hit:
-            tokens.append((f"[{label} ◆{','.join(hit[s['id']])}]", ST_MARK))
-        else:
-            tokens.append((label, ST_DIM))
+            tokens.append((f"[{n} {title} ◆{','.join(hit[s['id']])}]", ST_MARK))
+        else:  # unmarked steps in short: the part before a colon, else the first two words
+            short = title.split(":")[0] if ":" in title else " ".join(title.split()[:2])
+            tokens.append((f"{n} {short}", ST_DIM))
     line = Text()
     for i, (tok, style) in enumerate(tokens):
         sep = " → " if i else ""
