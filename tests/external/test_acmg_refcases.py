@@ -34,13 +34,17 @@ MECHANISMS = {
     "RGS9BP": (("AR",), ("LOF",)), "IFT140": (("AR",), ("LOF",)), "PRPF31": (("AD",), ("LOF",)),
     "NRL": (("AR", "AD"), ("LOF", "GOF")),
 }
-NULL = {"stop_gained", "frameshift_variant", "splice_donor_variant", "splice_acceptor_variant", "start_lost"}
+NULL = {"stop_gained", "frameshift_variant", "splice_donor_variant", "splice_acceptor_variant", "start_lost",
+        "exon_loss_variant"}
 
 
 def consequence(hgvs_c: str, hgvs_p: str) -> str:
     """Sequence Ontology term from HGVS expressions (the mapping this check relies on)."""
     p = hgvs_p.split(":", 1)[-1]
     c = hgvs_c.split(":", 1)[-1]
+    span = re.search(r"c\.(\d+)[+-]\d+_(\d+)[+-]\d+del", c)
+    if span and span.group(1) != span.group(2):
+        return "exon_loss_variant"  # deletion from one intron to another removes whole exon(s)
     if re.search(r"c\.\d+\+[12][ACGT]", c) or re.search(r"c\.\d+\+[12](del|dup|_)", c):
         return "splice_donor_variant"
     if re.search(r"c\.\d+-[12][ACGT]", c) or re.search(r"c\.\d+-[12](del|dup|_)", c):
@@ -87,6 +91,22 @@ def causal_variants():
 
 
 CASES = causal_variants()
+
+
+@pytest.mark.parametrize("c,p,term", [  # HGVS (den Dunnen et al. 2016) -> Sequence Ontology term
+    ("c.1639G>T", "p.(Ala547Ser)", "missense_variant"),
+    ("c.898C>T", "p.(Arg300Ter)", "stop_gained"),
+    ("c.898C>T", "p.(Arg300*)", "stop_gained"),
+    ("c.100del", "p.(Gly34AlafsTer5)", "frameshift_variant"),
+    ("c.100+1G>A", "p.?", "splice_donor_variant"),
+    ("c.101-2A>G", "p.?", "splice_acceptor_variant"),
+    ("c.2A>G", "p.(Met1?)", "start_lost"),
+    ("c.100+5G>A", "p.?", "intron_variant"),
+    ("c.2710+374_2895+78del", "p.?", "exon_loss_variant"),
+    ("c.147_149del", "p.(Ser50del)", "inframe_deletion"),
+])
+def test_hgvs_to_consequence(c, p, term):
+    assert consequence(c, p) == term
 RULES = load_rules()
 
 
