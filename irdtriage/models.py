@@ -259,6 +259,8 @@ class PhenotypeMatch:
     matched_terms: list[dict[str, Any]] = field(default_factory=list)  # [{patient, gene_term, ic}]
     conflicting_terms: list[str] = field(default_factory=list)  # excluded terms that are hallmarks
     summary: str = ""
+    z: float = 0.0  # per-gene z-score against the gene's own null (used for PP4)
+    gene_percentile: float = 0.0  # per-gene percentile against the gene's own null (used for PP4)
 
 
 @dataclass
@@ -272,3 +274,4 @@ class GeneHypothesis:
     rank: int = 0
     reason: str = ""
     next_steps: list[str] = field(default_factory=list)
+    assessment: Any = None  # irdtriage.genotype.GenotypeAssessment behind genotype_fit
