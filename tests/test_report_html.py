@@ -161,3 +161,16 @@ def test_render_is_pure_and_escapes_without_browser():
     out = render_html(r)
     assert "<x>" not in out and "&lt;x&gt;&amp;" in out
     assert out == render_html(r)
+
+
+@needs_chromium
+def test_prints_on_a4(tmp_path):
+    # source: ISO 216 A4 = 210 x 297 mm = 595.28 x 841.89 PostScript points
+    page = tmp_path / "report.html"
+    page.write_text(render_html(json.loads(FIXTURE.read_text())), encoding="utf-8")
+    pdf = tmp_path / "r.pdf"
+    _chromium(tmp_path, page, f"--print-to-pdf={pdf}", "--no-pdf-header-footer")
+    boxes = re.findall(rb"/MediaBox \[0 0 ([\d.]+) ([\d.]+)\]", pdf.read_bytes())
+    assert boxes
+    for w, h in boxes:
+        assert abs(float(w) - 595.28) < 1.5 and abs(float(h) - 841.89) < 1.5
