@@ -170,7 +170,8 @@ def _criteria_table(f: dict) -> str:
 
 def _finding(f: dict) -> str:
     fam = f.get("family") or {}
-    fam_txt = "; ".join(f"{k}: {v.get('genotype')} ({v.get('zygosity')})" for k, v in fam.items()) or "—"
+    fam_txt = "; ".join(f"{k}{' (' + str(v['role']) + ')' if v.get('role') else ''}: {v.get('genotype')} ({v.get('zygosity')})"
+                        for k, v in fam.items()) or "—"
     o = f.get("original") or {}
     orig = ""
     if o and (o.get("pos") != f.get("pos") or o.get("ref") != f.get("ref") or list(o.get("alts") or []) != [f.get("alt")]):

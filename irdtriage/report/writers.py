@@ -37,7 +37,7 @@ def write_outputs(
 ) -> dict[str, Path]:
     """Render the chosen formats, then write them into ``out_dir``; returns {format: path}.
 
-    ``cascade_steps`` (the panel's [{id, title, kind, order}, ...]) is stored in
+    ``cascade_steps`` (the panel's [{id, title, kind, order, ...}, ...]) is stored in
     ``result['cascade']`` when given so that result.json carries the whole chain.
     The VCF's index is written beside it as ``findings.vcf.gz.tbi``.
     """
@@ -47,7 +47,7 @@ def write_outputs(
         raise ValueError(f"unknown output format(s): {', '.join(unknown)}; choose from {', '.join(FORMATS)}")
     if cascade_steps:
         result = dict(result)
-        result["cascade"] = [{k: s.get(k) for k in ("id", "title", "kind", "order")} for s in cascade_steps]
+        result["cascade"] = [dict(s) for s in cascade_steps]
     out_dir = Path(out_dir)
     texts: dict[str, tuple[Path, str]] = {}
     if "json" in formats:
