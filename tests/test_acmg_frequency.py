@@ -9,7 +9,6 @@ Sources beside each check:
   group, de Marvao et al., JACC 2021;78:1097-1110).
 * ABCA4 c.5603A>T p.(Asn1868Ile) is a frequent pathogenic hypomorph (common practice).
 """
-import math
 
 import pytest
 

@@ -12,7 +12,7 @@ Strong (Pejaver et al. 2022).
 """
 from __future__ import annotations
 
-from typing import Iterable, Optional
+from typing import Iterable
 
 from ..models import ALL_CODES, CriterionResult, Finding, Gene
 from .assertions import evaluate_assertions

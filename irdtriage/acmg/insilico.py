@@ -55,12 +55,11 @@ def evaluate_insilico(ann: Optional[Annotation], rules: Rules, ev: dict) -> list
     if t & MISSENSE:
         if value is None and sai is None:
             msg = "no calibrated missense score (REVEL) or SpliceAI value available"
-            pp3 = bp4 = result("PP3", None, None, msg, **evidence)
-            return [pp3, result("BP4", None, None, msg, **evidence),
+            return [result("PP3", None, None, msg, **evidence), result("BP4", None, None, msg, **evidence),
                     result("BP7", False, None, "missense variant", **evidence)]
         p_str = score_strength(value, spec["pp3"], spec["higher_is_damaging"]) if value is not None else None
         b_str = score_strength(value, spec["bp4"], not spec["higher_is_damaging"]) if value is not None else None
-        s_txt = f"{name.upper()} {value:.3f}" if value is not None else f"no calibrated missense score"
+        s_txt = f"{name.upper()} {value:.3f}" if value is not None else "no calibrated missense score"
         splice_p = sai is not None and sai >= ins["spliceai_pp3"]
         if p_str or splice_p:
             strength = p_str or "Supporting"
@@ -74,9 +73,13 @@ def evaluate_insilico(ann: Optional[Annotation], rules: Rules, ev: dict) -> list
             bp4 = result("BP4", True, b_str, f"{s_txt} -> {b_str} (benign interval); {sai_txt}"
                          + ("" if sai is not None else " (splicing not assessed)"), **evidence)
         else:
-            bp4 = result("BP4", False if value is not None else None, None,
-                         f"{s_txt} not in a benign interval" if not b_str else f"{s_txt} benign but {sai_txt} "
-                         f"> {ins['spliceai_benign']}", **evidence)
+            if value is None:
+                why = f"no calibrated missense score (REVEL); {sai_txt}"
+            elif not b_str:
+                why = f"{s_txt} not in a benign interval (BP4 needs <= {max(spec['bp4'].values())})"
+            else:
+                why = f"{s_txt} benign but {sai_txt} > {ins['spliceai_benign']}"
+            bp4 = result("BP4", False if value is not None else None, None, why, **evidence)
         return [pp3, bp4, result("BP7", False, None, "missense variant", **evidence)]
 
     # non-missense, non-null: splicing prediction only
