@@ -1,0 +1,618 @@
+"""Load, validate and index the curated gene panel (panels/genes.yaml + panels/cascade.yaml).
+
+Public API
+----------
+- :func:`default_panel_path`, :func:`default_cascade_path` -- the bundled files.
+- :func:`load_panel` -- read + strictly validate a panel and its cascade map into
+  :class:`irdtriage.models.Panel`; optional gene subset.
+- :func:`load_cascade` -- read + validate a cascade map alone.
+- :func:`check_panel` -- deeper consistency checks, returns a list of problems.
+- :func:`intervals`, :func:`merged_regions` -- padded per-gene regions for a genome build.
+- :class:`GeneLocator` -- which panel genes overlap a position (bisect on sorted intervals).
+- :func:`parse_gene_option`, :func:`read_gene_list` -- ``--genes RPE65,ABCA4`` / ``--genes @file``.
+
+Every input problem raises :class:`irdtriage.errors.InputError` naming the file and,
+where the YAML parser knows it, the line of the offending gene or step.
+
+The panel hash (``Panel.sha256``) is SHA-256 over the bytes of the gene file followed
+by the bytes of the cascade file, so it changes when either changes.
+"""
+from __future__ import annotations
+
+import bisect
+import hashlib
+import re
+from collections.abc import Iterable
+from pathlib import Path
+from typing import Any, Optional, Union
+
+import yaml
+
+from .errors import InputError
+from .models import CascadeStep, Gene, Panel, Span
+
+PathLike = Union[str, Path]
+
+INHERITANCE_MODES = ("AR", "AD", "XLR", "XLD", "MT")
+MECHANISMS = ("LOF", "GOF", "DN")
+STEP_KINDS = ("chain", "recovery", "visual_cycle", "module")
+CHROMOSOMES = tuple(str(i) for i in range(1, 23)) + ("X", "Y", "MT")
+_CHROM_RANK = {c: i for i, c in enumerate(CHROMOSOMES)}
+
+# Default padding (bp) added on each side of a gene span for region fetches and the
+# gene locator: covers splice-region and near-UTR variants at the transcript ends.
+DEFAULT_PADDING = 50
+
+PANEL_TOP_REQUIRED = ("name", "version", "genes")
+PANEL_TOP_OPTIONAL = ("sources", "curation", "gene_count", "description")
+GENE_REQUIRED = (
+    "symbol", "hgnc_id", "name", "refseq_transcript", "ensembl_transcript", "refseq_protein",
+    "strand", "grch38", "grch37", "inheritance", "mechanisms", "conditions", "cascade_step",
+)
+GENE_OPTIONAL = ("syndromic", "notes", "hpo_justification")
+SPAN_KEYS = ("chrom", "start", "end")
+CASCADE_TOP_REQUIRED = ("version", "steps")
+CASCADE_TOP_OPTIONAL = ("description",)
+STEP_REQUIRED = ("id", "title", "kind", "order", "text", "breaks")
+
+_RE_SYMBOL = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._@-]*$")
+_RE_HGNC = re.compile(r"^HGNC:[1-9][0-9]*$")
+_RE_REFSEQ_TX = re.compile(r"^N[MR]_[0-9]+\.[0-9]+$")
+_RE_REFSEQ_PROT = re.compile(r"^NP_[0-9]+\.[0-9]+$")
+_RE_ENST = re.compile(r"^ENST[0-9]{11}\.[0-9]+$")
+_RE_STEP_ID = re.compile(r"^[a-z][a-z0-9_]*$")
+
+_BUILD_ALIASES = {
+    "grch38": "GRCh38", "hg38": "GRCh38", "38": "GRCh38",
+    "grch37": "GRCh37", "hg19": "GRCh37", "b37": "GRCh37", "37": "GRCh37",
+}
+
+
+# ---------------------------------------------------------------------------
+# Default files
+# ---------------------------------------------------------------------------
+def _default_file(name: str) -> Path:
+    try:
+        from importlib.resources import files
+
+        candidate = files("irdtriage.panels") / name
+        if candidate.is_file():
+            return Path(str(candidate))
+    except (ImportError, ModuleNotFoundError, TypeError, FileNotFoundError):
+        pass
+    return Path(__file__).resolve().parents[1] / "panels" / name
+
+
+def default_panel_path() -> Path:
+    """The bundled genes.yaml (installed package data, else the repository's panels/)."""
+    return _default_file("genes.yaml")
+
+
+def default_cascade_path() -> Path:
+    """The bundled cascade.yaml (installed package data, else the repository's panels/)."""
+    return _default_file("cascade.yaml")
+
+
+# ---------------------------------------------------------------------------
+# YAML with line numbers
+# ---------------------------------------------------------------------------
+class _Map(dict):
+    """A mapping that remembers the YAML line of itself and of each key."""
+
+    line: Optional[int] = None
+    key_lines: dict[str, int]
+
+
+class _DuplicateKey(Exception):
+    def __init__(self, key: str, line: int):
+        super().__init__(key)
+        self.key, self.line = key, line
+
+
+class _LineLoader(getattr(yaml, "CSafeLoader", yaml.SafeLoader)):  # libyaml when available
+    pass
+
+
+def _construct_mapping(loader: _LineLoader, node: yaml.MappingNode) -> _Map:
+    loader.flatten_mapping(node)
+    out = _Map()
+    out.line = node.start_mark.line + 1
+    out.key_lines = {}
+    for key_node, value_node in node.value:
+        key = loader.construct_object(key_node, deep=True)
+        if isinstance(key, (list, dict)):
+            raise _DuplicateKey(str(key), key_node.start_mark.line + 1)
+        if key in out:
+            raise _DuplicateKey(str(key), key_node.start_mark.line + 1)
+        out[key] = loader.construct_object(value_node, deep=True)
+        out.key_lines[str(key)] = key_node.start_mark.line + 1
+    return out
+
+
+_LineLoader.add_constructor(yaml.resolver.BaseResolver.DEFAULT_MAPPING_TAG, _construct_mapping)
+
+
+def _read_yaml(path: Path) -> tuple[bytes, Any]:
+    try:
+        data = path.read_bytes()
+    except FileNotFoundError:
+        raise InputError("file not found", path) from None
+    except IsADirectoryError:
+        raise InputError("is a directory, expected a YAML file", path) from None
+    except OSError as e:
+        raise InputError(f"cannot read: {e.strerror}", path) from None
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError as e:
+        raise InputError(f"not UTF-8 text (byte {e.start})", path) from None
+    try:
+        doc = yaml.load(text, Loader=_LineLoader)  # noqa: S506 (safe loader subclass)
+    except _DuplicateKey as e:
+        raise InputError(f"duplicate key {e.key!r}", path, e.line) from None
+    except yaml.MarkedYAMLError as e:
+        mark = e.problem_mark or e.context_mark
+        line = mark.line + 1 if mark is not None else None
+        raise InputError(f"YAML syntax error: {e.problem or e}", path, line) from None
+    except yaml.YAMLError as e:
+        raise InputError(f"YAML error: {e}", path) from None
+    return data, doc
+
+
+def _line(obj: Any, key: Optional[str] = None) -> Optional[int]:
+    if isinstance(obj, _Map):
+        if key is not None and key in obj.key_lines:
+            return obj.key_lines[key]
+        return obj.line
+    return None
+
+
+# ---------------------------------------------------------------------------
+# Cascade
+# ---------------------------------------------------------------------------
+def load_cascade(path: Optional[PathLike] = None) -> tuple[str, dict[str, CascadeStep], bytes]:
+    """Read and validate a cascade map: (version, steps by id in file order, file bytes)."""
+    p = Path(path) if path is not None else default_cascade_path()
+    data, doc = _read_yaml(p)
+    if not isinstance(doc, dict):
+        raise InputError("cascade file must be a mapping with 'version' and 'steps'", p, _line(doc))
+    _check_keys(doc, CASCADE_TOP_REQUIRED, CASCADE_TOP_OPTIONAL, p, "cascade file")
+    version = doc["version"]
+    if not isinstance(version, str) or not version.strip():
+        raise InputError("cascade 'version' must be a quoted string, e.g. \"2026.12.0\"", p, _line(doc, "version"))
+    steps_raw = doc["steps"]
+    if not isinstance(steps_raw, list) or not steps_raw:
+        raise InputError("cascade 'steps' must be a non-empty list", p, _line(doc, "steps"))
+    steps: dict[str, CascadeStep] = {}
+    orders: dict[int, str] = {}
+    for raw in steps_raw:
+        if not isinstance(raw, dict):
+            raise InputError("each cascade step must be a mapping", p, _line(doc, "steps"))
+        sid = raw.get("id")
+        what = f"cascade step {sid!r}" if sid else "cascade step"
+        _check_keys(raw, STEP_REQUIRED, (), p, what)
+        line = _line(raw)
+        if not isinstance(sid, str) or not _RE_STEP_ID.match(sid):
+            raise InputError(f"{what}: id must be lower_snake_case text", p, _line(raw, "id"))
+        if sid in steps:
+            raise InputError(f"duplicate cascade step id {sid!r}", p, line)
+        for key in ("title", "text"):
+            if not isinstance(raw[key], str) or not raw[key].strip():
+                raise InputError(f"{what}: '{key}' must be non-empty text", p, _line(raw, key))
+        if not isinstance(raw["breaks"], str):
+            raise InputError(f"{what}: 'breaks' must be text", p, _line(raw, "breaks"))
+        kind = raw["kind"]
+        if kind not in STEP_KINDS:
+            raise InputError(f"{what}: kind {kind!r} is not one of {', '.join(STEP_KINDS)}", p, _line(raw, "kind"))
+        order = raw["order"]
+        if kind == "chain":
+            if not isinstance(order, int) or isinstance(order, bool) or order < 1:
+                raise InputError(f"{what}: a chain step needs a positive integer 'order'", p, _line(raw, "order"))
+            if order in orders:
+                raise InputError(f"{what}: order {order} already used by step {orders[order]!r}",
+                                 p, _line(raw, "order"))
+            orders[order] = sid
+        elif order is not None:
+            raise InputError(f"{what}: only chain steps carry an 'order' (write order: null)", p, _line(raw, "order"))
+        steps[sid] = CascadeStep(
+            id=sid, title=" ".join(raw["title"].split()), kind=kind, order=order,
+            text=" ".join(raw["text"].split()), breaks=" ".join(raw["breaks"].split()),
+        )
+    return version, steps, data
+
+
+# ---------------------------------------------------------------------------
+# Panel
+# ---------------------------------------------------------------------------
+def _check_keys(obj: dict, required: Iterable[str], optional: Iterable[str], path: Path, what: str) -> None:
+    required, optional = tuple(required), tuple(optional)
+    missing = [k for k in required if k not in obj]
+    if missing:
+        raise InputError(f"{what}: missing key{'s' if len(missing) > 1 else ''} {', '.join(missing)}",
+                         path, _line(obj))
+    unknown = [k for k in obj if k not in required and k not in optional]
+    if unknown:
+        k = unknown[0]
+        allowed = ", ".join(required + optional)
+        raise InputError(f"{what}: unknown key {k!r} (allowed: {allowed})", path, _line(obj, str(k)))
+
+
+def _bare_chrom(chrom: Any) -> str:
+    c = str(chrom)
+    if c.lower().startswith("chr"):
+        c = c[3:]
+    if c.upper() in ("M", "MT"):
+        return "MT"
+    return c.upper() if c.upper() in ("X", "Y") else c
+
+
+def _span(raw: Any, gene: dict, key: str, path: Path, what: str, nullable: bool) -> Optional[Span]:
+    line = _line(gene, key)
+    if raw is None:
+        if nullable:
+            return None
+        raise InputError(f"{what}: '{key}' span is required", path, line)
+    if not isinstance(raw, dict):
+        raise InputError(f"{what}: '{key}' must be a mapping {{chrom, start, end}} or null", path, line)
+    missing = [k for k in SPAN_KEYS if k not in raw]
+    unknown = [k for k in raw if k not in SPAN_KEYS]
+    if missing or unknown:
+        problem = f"missing {', '.join(missing)}" if missing else f"unknown key {unknown[0]!r}"
+        raise InputError(f"{what}: '{key}' span: {problem} (keys: chrom, start, end)", path, line)
+    chrom = _bare_chrom(raw["chrom"])
+    if chrom not in CHROMOSOMES:
+        raise InputError(f"{what}: '{key}' chromosome {raw['chrom']!r} is not 1-22, X, Y or MT", path, line)
+    start, end = raw["start"], raw["end"]
+    for name, v in (("start", start), ("end", end)):
+        if not isinstance(v, int) or isinstance(v, bool) or v < 1:
+            raise InputError(f"{what}: '{key}' {name} must be a positive integer (1-based)", path, line)
+    if start > end:
+        raise InputError(f"{what}: '{key}' start {start} is after end {end}", path, line)
+    return Span(chrom=chrom, start=start, end=end)
+
+
+def _str_list(raw: Any, gene: dict, key: str, path: Path, what: str) -> tuple[str, ...]:
+    if not isinstance(raw, list) or not all(isinstance(x, str) and x.strip() for x in raw):
+        raise InputError(f"{what}: '{key}' must be a list of non-empty text items", path, _line(gene, key))
+    return tuple(" ".join(x.split()) for x in raw)
+
+
+def _vocab_list(raw: Any, gene: dict, key: str, allowed: tuple[str, ...], path: Path, what: str,
+                allow_empty: bool) -> tuple[str, ...]:
+    line = _line(gene, key)
+    if not isinstance(raw, list):
+        raise InputError(f"{what}: '{key}' must be a list, e.g. [{allowed[0]}]", path, line)
+    if not raw and not allow_empty:
+        raise InputError(f"{what}: '{key}' must not be empty (allowed: {', '.join(allowed)})", path, line)
+    bad = [x for x in raw if x not in allowed]
+    if bad:
+        raise InputError(f"{what}: {key} value {bad[0]!r} is not one of {', '.join(allowed)}", path, line)
+    if len(set(raw)) != len(raw):
+        raise InputError(f"{what}: '{key}' lists a value twice", path, line)
+    return tuple(raw)
+
+
+def _text(raw: Any, gene: dict, key: str, pattern: Optional[re.Pattern], example: str, path: Path,
+          what: str) -> str:
+    if not isinstance(raw, str) or not raw.strip():
+        raise InputError(f"{what}: '{key}' must be non-empty text, e.g. {example}", path, _line(gene, key))
+    if pattern is not None and not pattern.match(raw):
+        raise InputError(f"{what}: {key} {raw!r} is not well-formed (expected e.g. {example})",
+                         path, _line(gene, key))
+    return raw.strip()
+
+
+def _parse_gene(raw: Any, path: Path, steps: dict[str, CascadeStep], genes_line: Optional[int]) -> Gene:
+    if not isinstance(raw, dict):
+        raise InputError("each entry under 'genes' must be a mapping", path, genes_line)
+    sym = raw.get("symbol")
+    what = f"gene {sym}" if isinstance(sym, str) and sym else "gene entry"
+    _check_keys(raw, GENE_REQUIRED, GENE_OPTIONAL, path, what)
+    symbol = _text(sym, raw, "symbol", _RE_SYMBOL, "RPE65", path, what)
+    hgnc = _text(raw["hgnc_id"], raw, "hgnc_id", _RE_HGNC, "HGNC:10294", path, what)
+    name = _text(raw["name"], raw, "name", None, "retinoid isomerohydrolase RPE65", path, what)
+    tx = _text(raw["refseq_transcript"], raw, "refseq_transcript", _RE_REFSEQ_TX, "NM_000329.3", path, what)
+    enst = _text(raw["ensembl_transcript"], raw, "ensembl_transcript", _RE_ENST, "ENST00000262340.6", path, what)
+    prot_raw = raw["refseq_protein"]
+    if tx.startswith("NR_") and prot_raw in ("", None):
+        prot = ""
+    else:
+        prot = _text(prot_raw, raw, "refseq_protein", _RE_REFSEQ_PROT, "NP_000320.1", path, what)
+    strand = raw["strand"]
+    if strand not in ("+", "-"):
+        raise InputError(f"{what}: strand must be \"+\" or \"-\"", path, _line(raw, "strand"))
+    grch38 = _span(raw["grch38"], raw, "grch38", path, what, nullable=False)
+    grch37 = _span(raw["grch37"], raw, "grch37", path, what, nullable=True)
+    inheritance = _vocab_list(raw["inheritance"], raw, "inheritance", INHERITANCE_MODES, path, what, False)
+    mechanisms = _vocab_list(raw["mechanisms"], raw, "mechanisms", MECHANISMS, path, what, True)
+    conditions = _str_list(raw["conditions"], raw, "conditions", path, what)
+    step = raw["cascade_step"]
+    if not isinstance(step, str) or step not in steps:
+        raise InputError(f"{what}: cascade_step {step!r} is not a step or module in the cascade map",
+                         path, _line(raw, "cascade_step"))
+    syndromic = raw.get("syndromic", False)
+    if not isinstance(syndromic, bool):
+        raise InputError(f"{what}: 'syndromic' must be true or false", path, _line(raw, "syndromic"))
+    notes = _str_list(raw.get("notes", []) or [], raw, "notes", path, what)
+    just = raw.get("hpo_justification", "") or ""
+    if not isinstance(just, str):
+        raise InputError(f"{what}: 'hpo_justification' must be text", path, _line(raw, "hpo_justification"))
+    return Gene(
+        symbol=symbol, hgnc_id=hgnc, name=name, refseq_transcript=tx, ensembl_transcript=enst,
+        refseq_protein=prot, strand=strand, grch38=grch38, grch37=grch37, inheritance=inheritance,
+        mechanisms=mechanisms, conditions=conditions, cascade_step=step, syndromic=syndromic,
+        notes=notes, hpo_justification=" ".join(just.split()),
+    )
+
+
+def load_panel(
+    path: Optional[PathLike] = None,
+    cascade_path: Optional[PathLike] = None,
+    genes: Optional[Iterable[str]] = None,
+) -> Panel:
+    """Read and strictly validate a panel.
+
+    ``path``: a genes.yaml (default: the bundled panel). ``cascade_path``: a cascade.yaml;
+    when omitted, a ``cascade.yaml`` next to ``path`` is used if present, else the bundled
+    one. ``genes``: keep only these symbols (case-insensitive); unknown symbols raise
+    InputError listing all of them.
+    """
+    p = Path(path) if path is not None else default_panel_path()
+    if cascade_path is not None:
+        cp = Path(cascade_path)
+    elif path is not None and (p.parent / "cascade.yaml").is_file():
+        cp = p.parent / "cascade.yaml"
+    else:
+        cp = default_cascade_path()
+    _cversion, steps, cascade_bytes = load_cascade(cp)
+
+    data, doc = _read_yaml(p)
+    if not isinstance(doc, dict):
+        raise InputError("panel file must be a mapping with 'name', 'version' and 'genes'", p, _line(doc))
+    _check_keys(doc, PANEL_TOP_REQUIRED, PANEL_TOP_OPTIONAL, p, "panel file")
+    name, version = doc["name"], doc["version"]
+    if not isinstance(name, str) or not name.strip():
+        raise InputError("panel 'name' must be non-empty text", p, _line(doc, "name"))
+    if not isinstance(version, str) or not version.strip():
+        raise InputError("panel 'version' must be a quoted string, e.g. \"2026.12.0\"", p, _line(doc, "version"))
+    raw_genes = doc["genes"]
+    if not isinstance(raw_genes, list) or not raw_genes:
+        raise InputError("panel 'genes' must be a non-empty list", p, _line(doc, "genes"))
+
+    out: dict[str, Gene] = {}
+    lines: dict[str, Optional[int]] = {}
+    hgnc_seen: dict[str, str] = {}
+    for raw in raw_genes:
+        gene = _parse_gene(raw, p, steps, _line(doc, "genes"))
+        line = _line(raw)
+        if gene.symbol in out:
+            raise InputError(f"duplicate gene symbol {gene.symbol} (first at line {lines[gene.symbol]})", p, line)
+        if gene.hgnc_id in hgnc_seen:
+            raise InputError(f"gene {gene.symbol}: hgnc_id {gene.hgnc_id} already used by {hgnc_seen[gene.hgnc_id]}",
+                             p, _line(raw, "hgnc_id"))
+        out[gene.symbol] = gene
+        lines[gene.symbol] = line
+        hgnc_seen[gene.hgnc_id] = gene.symbol
+    if "gene_count" in doc and doc["gene_count"] != len(out):
+        raise InputError(f"gene_count says {doc['gene_count']} but the file lists {len(out)} genes",
+                         p, _line(doc, "gene_count"))
+
+    h = hashlib.sha256()
+    h.update(data)
+    h.update(cascade_bytes)
+    total = len(out)
+    if genes is not None:
+        out = _select(out, genes, p)
+    panel = Panel(name=name.strip(), version=version.strip(), sha256=h.hexdigest(), genes=out,
+                  cascade=steps, source=str(p))
+    if genes is not None and len(out) < total:
+        # marks a subset so check_panel does not require every step to be used
+        object.__setattr__(panel, "_selected_from", total)
+    return panel
+
+
+def _select(all_genes: dict[str, Gene], wanted: Iterable[str], path: Path) -> dict[str, Gene]:
+    if isinstance(wanted, str):
+        wanted = parse_gene_option(wanted)
+    by_upper = {s.upper(): s for s in all_genes}
+    chosen: set[str] = set()
+    unknown: list[str] = []
+    for w in wanted:
+        w = str(w).strip()
+        if not w:
+            continue
+        s = by_upper.get(w.upper())
+        if s is None:
+            if w not in unknown:
+                unknown.append(w)
+        else:
+            chosen.add(s)
+    if unknown:
+        raise InputError(f"gene{'s' if len(unknown) > 1 else ''} not on the panel: {', '.join(unknown)}", path)
+    if not chosen:
+        raise InputError("the gene selection is empty", path)
+    return {s: g for s, g in all_genes.items() if s in chosen}
+
+
+# ---------------------------------------------------------------------------
+# Gene lists (--genes)
+# ---------------------------------------------------------------------------
+def read_gene_list(path: PathLike) -> list[str]:
+    """Symbols from a text file: one or more per line (comma/space separated), '#' comments."""
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise InputError("gene list file not found", p) from None
+    except (OSError, UnicodeDecodeError) as e:
+        raise InputError(f"cannot read gene list: {getattr(e, 'strerror', None) or e}", p) from None
+    out: list[str] = []
+    for n, line in enumerate(text.splitlines(), start=1):
+        for tok in line.split("#", 1)[0].replace(",", " ").split():
+            if not _RE_SYMBOL.match(tok):
+                raise InputError(f"{tok!r} is not a gene symbol", p, n)
+            out.append(tok)
+    if not out:
+        raise InputError("gene list file names no genes", p)
+    return out
+
+
+def parse_gene_option(spec: str) -> list[str]:
+    """``RPE65,ABCA4`` -> [RPE65, ABCA4]; ``@genes.txt`` -> the file's symbols; both may mix."""
+    out: list[str] = []
+    for part in spec.split(","):
+        part = part.strip()
+        if not part:
+            continue
+        if part.startswith("@"):
+            out.extend(read_gene_list(part[1:]))
+        else:
+            out.append(part)
+    return out
+
+
+# ---------------------------------------------------------------------------
+# Deeper checks
+# ---------------------------------------------------------------------------
+def check_panel(panel: Panel, require_every_step: Optional[bool] = None) -> list[str]:
+    """Consistency problems beyond what loading validates (empty list = consistent).
+
+    ``require_every_step``: every recovery / visual-cycle / module step must carry at least
+    one gene (chain steps describe the physiology in order and may be empty). Default: on,
+    except for a panel loaded with a gene subset.
+    """
+    problems: list[str] = []
+    if require_every_step is None:
+        require_every_step = not hasattr(panel, "_selected_from")
+    used: dict[str, list[str]] = {sid: [] for sid in panel.cascade}
+    for sym, g in panel.genes.items():
+        if g.cascade_step not in panel.cascade:
+            problems.append(f"{sym}: cascade_step {g.cascade_step!r} is not in the cascade map")
+        else:
+            used[g.cascade_step].append(sym)
+        if sym != g.symbol:
+            problems.append(f"{sym}: keyed under a different symbol ({g.symbol})")
+        if g.x_linked:
+            for build, span in (("GRCh38", g.grch38), ("GRCh37", g.grch37)):
+                if span is not None and span.chrom != "X":
+                    problems.append(f"{sym}: X-linked inheritance but {build} span is on chromosome {span.chrom}")
+        elif g.grch38.chrom == "X" and "MT" not in g.inheritance:
+            problems.append(f"{sym}: on chromosome X but inheritance {','.join(g.inheritance)} is not X-linked")
+        if "MT" in g.inheritance and g.grch38.chrom != "MT":
+            problems.append(f"{sym}: mitochondrial inheritance but GRCh38 span is on chromosome {g.grch38.chrom}")
+        if g.grch37 is None:
+            problems.append(f"{sym}: no GRCh37 span (GRCh37 region fetches will miss the gene)")
+        elif g.grch37.chrom != g.grch38.chrom:
+            problems.append(f"{sym}: GRCh37 chromosome {g.grch37.chrom} differs from GRCh38 {g.grch38.chrom}")
+        for build, span in (("GRCh38", g.grch38), ("GRCh37", g.grch37)):
+            if span is not None and span.end - span.start + 1 > 3_000_000:
+                problems.append(f"{sym}: {build} span is longer than 3 Mb")
+        if not g.mechanisms:
+            problems.append(f"{sym}: no disease mechanism given")
+        if not g.conditions:
+            problems.append(f"{sym}: no associated condition given")
+        if not g.dominant and g.mechanisms and "LOF" not in g.mechanisms:
+            problems.append(f"{sym}: recessive-only gene without loss of function among its mechanisms")
+    chain_orders = sorted(s.order for s in panel.cascade.values() if s.kind == "chain" and s.order is not None)
+    if chain_orders and chain_orders != list(range(1, len(chain_orders) + 1)):
+        problems.append(f"cascade chain orders are not 1..{len(chain_orders)}: {chain_orders}")
+    if require_every_step:
+        for sid, syms in used.items():
+            step = panel.cascade[sid]
+            if not syms and step.kind != "chain":
+                problems.append(f"cascade step {sid!r} ({step.kind}) has no panel gene")
+    return problems
+
+
+# ---------------------------------------------------------------------------
+# Intervals and the gene locator
+# ---------------------------------------------------------------------------
+def normalise_build(build: str) -> str:
+    b = _BUILD_ALIASES.get(str(build).strip().lower())
+    if b is None:
+        raise InputError(f"unknown genome build {build!r} (use GRCh37 or GRCh38)")
+    return b
+
+
+def _chrom_key(chrom: str) -> tuple[int, str]:
+    return (_CHROM_RANK.get(chrom, len(_CHROM_RANK)), chrom)
+
+
+def intervals(panel: Panel, build: str, padding: int = DEFAULT_PADDING) -> list[tuple[str, int, int, str]]:
+    """Sorted (bare chrom, start, end, symbol) per gene, padded, 1-based inclusive.
+
+    Genes without a span in ``build`` are left out (see :func:`missing_in_build`).
+    Sorted by chromosome (1..22, X, Y, MT), then start, end, symbol.
+    """
+    b = normalise_build(build)
+    if padding < 0:
+        raise ValueError("padding must be >= 0")
+    out = []
+    for sym, g in panel.genes.items():
+        span = g.span(b)
+        if span is None:
+            continue
+        out.append((span.chrom, max(1, span.start - padding), span.end + padding, sym))
+    out.sort(key=lambda t: (_chrom_key(t[0]), t[1], t[2], t[3]))
+    return out
+
+
+def merged_regions(panel: Panel, build: str, padding: int = DEFAULT_PADDING) -> list[tuple[str, int, int]]:
+    """Overlapping or touching gene intervals merged: fewer region fetches."""
+    out: list[list] = []
+    for chrom, start, end, _sym in intervals(panel, build, padding):
+        if out and out[-1][0] == chrom and start <= out[-1][2] + 1:
+            out[-1][2] = max(out[-1][2], end)
+        else:
+            out.append([chrom, start, end])
+    return [tuple(r) for r in out]  # type: ignore[misc]
+
+
+def missing_in_build(panel: Panel, build: str) -> list[str]:
+    """Panel genes without a span in ``build``."""
+    b = normalise_build(build)
+    return [s for s, g in panel.genes.items() if g.span(b) is None]
+
+
+class GeneLocator:
+    """Which panel genes overlap a position or range (padded spans, 1-based inclusive).
+
+    Per chromosome the intervals are sorted by start; a query bisects to the last
+    interval starting at or before the query end and walks left only as far as the
+    longest interval on that chromosome allows.
+    """
+
+    def __init__(self, panel: Panel, build: str, padding: int = DEFAULT_PADDING):
+        self.build = normalise_build(build)
+        self.padding = padding
+        self._starts: dict[str, list[int]] = {}
+        self._items: dict[str, list[tuple[int, int, str]]] = {}
+        self._maxlen: dict[str, int] = {}
+        for chrom, start, end, sym in intervals(panel, self.build, padding):
+            self._items.setdefault(chrom, []).append((start, end, sym))
+        for chrom, items in self._items.items():
+            items.sort()
+            self._starts[chrom] = [s for s, _e, _n in items]
+            self._maxlen[chrom] = max(e - s for s, e, _n in items)
+
+    def genes_at(self, chrom: str, pos: int, end: Optional[int] = None) -> list[str]:
+        """Symbols whose padded span overlaps [pos, end] (end defaults to pos), by start."""
+        c = _bare_chrom(chrom)
+        items = self._items.get(c)
+        if not items:
+            return []
+        q_end = pos if end is None else max(pos, end)
+        starts = self._starts[c]
+        i = bisect.bisect_right(starts, q_end) - 1
+        lowest = pos - self._maxlen[c]
+        hits: list[tuple[int, str]] = []
+        while i >= 0 and starts[i] >= lowest:
+            s, e, sym = items[i]
+            if e >= pos:
+                hits.append((s, sym))
+            i -= 1
+        hits.sort()
+        return [sym for _s, sym in hits]
+
+    def __contains__(self, item: tuple[str, int]) -> bool:
+        chrom, pos = item
+        return bool(self.genes_at(chrom, pos))
