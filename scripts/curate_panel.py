@@ -4,7 +4,6 @@
     python scripts/curate_panel.py \
         --mane ../shared/refdata/mane/MANE.GRCh38.v1.5.summary.txt.gz \
         --grch37 ../shared/refdata/gene_spans/gencode_canonical_grch37.txt.gz \
-        --grch38-table ../shared/refdata/gene_spans/gencode_canonical_grch38.txt.gz \
         --seed panels/curation/seed.yaml --out panels/genes.yaml
 
 Sources (facts copied into genes.yaml, cited in its header):
@@ -20,9 +19,10 @@ GRCh38 table with MANE for genes whose transcript end coincides, TX_START is one
 than MANE's 1-based start for the large majority of genes while TX_END equals MANE's
 end, i.e. TX_START is 0-based and TX_END is a 1-based inclusive end (UCSC/BED style).
 (The RHO row, where TX_START equals MANE's start, is a different transcript whose first
-base is one later.) So a 1-based inclusive span is (TX_START + 1, TX_END). With
-``--grch38-table`` the script re-derives this from the data and stops if it no longer
-holds.
+base is one later.) So a 1-based inclusive span is (TX_START + 1, TX_END). With the
+GRCh38 table (``--grch38-table``; by default the ``..._grch38...`` file next to the
+``--grch37`` file when present) the script re-derives this from the data and stops if it
+no longer holds.
 
 The GENCODE canonical transcript is not always the MANE Select transcript. When the same
 canonical transcript (identical exon structure) appears in both the GRCh37 and GRCh38
@@ -259,12 +259,19 @@ def main(argv: Optional[list[str]] = None) -> int:
     ap.add_argument("--grch38-table", type=Path, default=None,
                     help="GENCODE-derived GRCh38 table: re-checks the coordinate base and lets "
                          "GRCh37 spans be widened to cover the MANE transcript")
+    ap.add_argument("--no-grch38-table", action="store_true",
+                    help="do not look for the GRCh38 table next to the --grch37 file")
     ap.add_argument("--seed", required=True, type=Path, help="panels/curation/seed.yaml")
     ap.add_argument("--out", required=True, type=Path, help="panels/genes.yaml to write")
     ap.add_argument("--name", default=PANEL_NAME)
     ap.add_argument("--version", default=PANEL_VERSION)
     args = ap.parse_args(argv)
 
+    if args.grch38_table is None and not args.no_grch38_table:
+        sibling = args.grch37.with_name(args.grch37.name.replace("grch37", "grch38"))
+        if sibling != args.grch37 and sibling.is_file():
+            args.grch38_table = sibling
+            print(f"curate_panel: using the GRCh38 table next to --grch37: {sibling}", file=sys.stderr)
     seed_doc = yaml.safe_load(args.seed.read_text())
     seed = seed_doc["genes"]
     mane = read_mane(args.mane)
