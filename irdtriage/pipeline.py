@@ -110,7 +110,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     from .genotype import infer_sex
 
-    sex_inf = infer_sex(intake.variants, proband, stated=stated_sex)
+    sex_inf = infer_sex(intake.variants, proband, stated=stated_sex, build=intake.build)
     if getattr(sex_inf, "warning", None):
         warnings.append(sex_inf.warning)
     sex = stated_sex or sex_inf.sex
@@ -186,27 +186,40 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     # 9-10. family criteria, ACMG pass 2 -------------------------------------------
     from .family_criteria import family_criteria
+    from .genotype import assess_gene
 
     by_gene: dict[str, list[models.Finding]] = {}
     for f in findings:
         by_gene.setdefault(f.gene, []).append(f)
+
+    def assess_all() -> dict[str, Any]:
+        out = {}
+        for symbol, gene_findings in by_gene.items():
+            context = [v for v in intake.variants if v.chrom_bare == panel.genes[symbol].span(intake.build).chrom] \
+                if panel.genes[symbol].span(intake.build) else []
+            out[symbol] = assess_gene(panel.genes[symbol], gene_findings, proband, sex, mother=mother,
+                                      father=father, build=intake.build, context=context)
+        return out
+
+    # BP5 needs to know which genes already explain the case: a complete P/LP fit from pass 1.
+    pass1 = assess_all()
+    complete = _complete_fits(pass1, by_gene)
     for symbol, gene_findings in by_gene.items():
         fam = family_criteria(panel.genes[symbol], gene_findings, proband, sex, pedigree=pedigree,
-                              mother=mother, father=father)
+                              mother=mother, father=father, build=intake.build,
+                              other_genes_explaining=[g for g in complete if g != symbol])
         for f in gene_findings:
             classify(f, pheno_criteria(f) + list(fam.get(f.id, [])))
 
     # 11. genotype fit per gene -----------------------------------------------------
-    from .genotype import assess_gene
     from .rank import assign_interpretation_status, case_call, rank_hypotheses
 
     hypotheses: list[models.GeneHypothesis] = []
-    for symbol, gene_findings in by_gene.items():
-        assessment = assess_gene(panel.genes[symbol], gene_findings, proband, sex, mother=mother, father=father)
-        h = models.GeneHypothesis(symbol=symbol, findings=gene_findings, genotype_fit=assessment.fit,
+    for symbol, assessment in assess_all().items():
+        h = models.GeneHypothesis(symbol=symbol, findings=by_gene[symbol], genotype_fit=assessment.fit,
                                   phase=assessment.phase, phenotype_match=matches.get(symbol))
         h.next_steps = list(getattr(assessment, "notes", []) or [])
-        h.assessment = assessment  # type: ignore[attr-defined]
+        h.assessment = assessment
         hypotheses.append(h)
 
     # 12. ranking and case call -----------------------------------------------------
@@ -222,6 +235,23 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         mother=mother, father=father, affected=affected, profile=profile, retinal=retinal,
         findings=findings, ranked=ranked, call=call, warnings=warnings,
     )
+
+
+STRONG_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")
+
+
+def _complete_fits(assessments: dict[str, Any], by_gene: dict[str, list[models.Finding]]) -> list[str]:
+    """Genes whose genotype fit is complete and made only of Pathogenic/Likely pathogenic alleles."""
+    out = []
+    for symbol, a in assessments.items():
+        if a.fit not in STRONG_FITS:
+            continue
+        ids = set(getattr(a, "qualifying_ids", ()) or ())
+        classes = [f.classification.classification for f in by_gene[symbol]
+                   if f.id in ids and f.classification is not None]
+        if classes and all(c in ("Pathogenic", "Likely pathogenic") for c in classes):
+            out.append(symbol)
+    return out
 
 
 def profile_sample(profile: models.PhenotypeProfile, pedigree: Any, vcf_path: str) -> Optional[str]:

@@ -1,0 +1,177 @@
+"""End-to-end checks of the `irdtriage` command, run as a real subprocess on real files.
+
+The demo family is invented: these tests check that the command runs and that its outputs
+are valid by outside definitions (JSON Schema, pysam/htslib, the phenopackets library),
+never that the invented case gets a particular clinical answer.
+"""
+from __future__ import annotations
+
+import gzip
+import json
+import os
+import shutil
+import subprocess
+import sys
+from pathlib import Path
+
+import pysam
+import pytest
+
+from irdtriage import CAUTION
+from irdtriage.demo import demo_inputs
+from irdtriage.models import ALL_CODES
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def run(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess:
+    env = dict(os.environ, NO_COLOR="1", COLUMNS="80", PYTHONPATH=str(ROOT))
+    return subprocess.run([sys.executable, "-m", "irdtriage", *args], capture_output=True, text=True,
+                          cwd=cwd or ROOT, env=env, timeout=600)
+
+
+@pytest.fixture(scope="module")
+def demo_out(tmp_path_factory) -> Path:
+    out = tmp_path_factory.mktemp("demo")
+    r = run("demo", "--out", str(out))
+    assert r.returncode == 0, r.stderr
+    assert CAUTION.split(".")[0] in r.stdout
+    return out
+
+
+def test_demo_writes_every_output(demo_out: Path):
+    names = {p.name for p in demo_out.iterdir()}
+    for expected in ("result.json", "report.html", "findings.tsv", "findings.vcf.gz", "findings.vcf.gz.tbi",
+                     "ARDEN-P1.phenopacket.json"):
+        assert expected in names, names
+    assert not [n for n in names if n.endswith(".part")], "temporary files left behind"
+
+
+def test_demo_result_follows_schema_and_carries_caution(demo_out: Path):
+    from irdtriage.report.json_out import validation_errors
+
+    result = json.loads((demo_out / "result.json").read_text())
+    assert validation_errors(result) == []
+    assert CAUTION in result["cautions"]
+    assert result["genome_build"] == "GRCh38"
+    assert [g["rank"] for g in result["genes"]] == list(range(1, len(result["genes"]) + 1))
+    ids = {f["id"] for f in result["findings"]}
+    for g in result["genes"]:
+        assert set(g["findings"]) <= ids
+        assert g["cascade_step"] and g["cascade_step"]["text"]
+    for f in result["findings"]:
+        # every finding reports all 28 ACMG/AMP codes (Richards et al. 2015), met or not
+        assert [c["code"] for c in f["criteria"]] == list(ALL_CODES)
+        for c in f["criteria"]:
+            assert c["reason"], c
+        assert f["classification"] in ("Pathogenic", "Likely pathogenic", "Uncertain significance",
+                                       "Likely benign", "Benign")
+
+
+def test_demo_vcf_output_reads_back_with_htslib(demo_out: Path):
+    with pysam.VariantFile(str(demo_out / "findings.vcf.gz")) as vf:
+        n = sum(1 for _ in vf)
+    result = json.loads((demo_out / "result.json").read_text())
+    assert n >= 1 and n <= len(result["findings"])
+
+
+def test_explain_shows_all_criteria_for_a_finding(demo_out: Path):
+    r = run("explain", "F1", "--result", str(demo_out / "result.json"))
+    assert r.returncode == 0, r.stderr
+    for code in ("PVS1", "PM2", "BA1", "BP7"):
+        assert code in r.stdout
+
+
+def test_report_rerenders_from_saved_result(demo_out: Path, tmp_path: Path):
+    r = run("report", str(demo_out / "result.json"), "--format", "tsv,html", "--out", str(tmp_path))
+    assert r.returncode == 0, r.stderr
+    assert (tmp_path / "findings.tsv").exists() and (tmp_path / "report.html").exists()
+
+
+def test_panel_commands():
+    r = run("panel", "list")
+    assert r.returncode == 0 and "RPE65" in r.stdout
+    r = run("panel", "show", "RPE65")
+    assert r.returncode == 0 and "HGNC:10294" in r.stdout  # HGNC ID of RPE65 (HGNC; also MANE v1.5)
+    r = run("panel", "check")
+    assert r.returncode == 0, r.stderr
+
+
+# --- bad input: one line, non-zero exit, nothing half-written --------------------------
+
+def _assert_clean_failure(r: subprocess.CompletedProcess, out: Path, *needles: str):
+    assert r.returncode == 2, (r.returncode, r.stdout, r.stderr)
+    lines = [ln for ln in r.stderr.splitlines() if ln.strip()]
+    assert len(lines) == 1, r.stderr
+    for n in needles:
+        assert n in lines[0], lines[0]
+    assert not out.exists() or not any(out.iterdir()), list(out.iterdir())
+
+
+def test_missing_file(tmp_path: Path):
+    out = tmp_path / "out"
+    r = run("triage", str(tmp_path / "nope.vcf.gz"), "--out", str(out))
+    _assert_clean_failure(r, out, "nope.vcf.gz")
+
+
+def test_not_a_vcf(tmp_path: Path):
+    bad = tmp_path / "notes.vcf"
+    bad.write_text("this is a shopping list\neggs\n")
+    out = tmp_path / "out"
+    _assert_clean_failure(run("triage", str(bad), "--out", str(out)), out, "notes.vcf")
+
+
+def test_truncated_gzip(tmp_path: Path):
+    data = Path(demo_inputs()["vcf"]).read_bytes()
+    bad = tmp_path / "cut.vcf.gz"
+    bad.write_bytes(data[: len(data) // 2])
+    out = tmp_path / "out"
+    _assert_clean_failure(run("triage", str(bad), "--sample", "ARDEN-P1", "--out", str(out)), out, "cut.vcf.gz")
+
+
+def test_unknown_sample(tmp_path: Path):
+    out = tmp_path / "out"
+    r = run("triage", demo_inputs()["vcf"], "--sample", "NOBODY", "--out", str(out))
+    _assert_clean_failure(r, out, "NOBODY")
+
+
+def test_ambiguous_sample_needs_choice(tmp_path: Path):
+    out = tmp_path / "out"
+    r = run("triage", demo_inputs()["vcf"], "--out", str(out))
+    _assert_clean_failure(r, out, "--sample")
+
+
+def test_malformed_hpo(tmp_path: Path):
+    out = tmp_path / "out"
+    r = run("triage", demo_inputs()["vcf"], "--sample", "ARDEN-P1", "--hpo", "HP:00005X", "--out", str(out))
+    _assert_clean_failure(r, out, "HP:00005X")
+
+
+def test_wrong_build(tmp_path: Path):
+    out = tmp_path / "out"
+    r = run("triage", demo_inputs()["vcf"], "--sample", "ARDEN-P1", "--build", "GRCh37", "--out", str(out))
+    _assert_clean_failure(r, out, "GRCh37")
+
+
+def test_no_genotypes(tmp_path: Path):
+    src = tmp_path / "sites.vcf"
+    src.write_text(
+        "##fileformat=VCFv4.2\n##contig=<ID=chr1,length=248956422>\n"
+        "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\n"
+        "chr1\t68438250\t.\tT\tTA\t50\tPASS\t.\n")
+    out = tmp_path / "out"
+    _assert_clean_failure(run("triage", str(src), "--out", str(out)), out, "sites.vcf")
+
+
+def test_unindexed_plain_vcf_gives_same_findings_as_indexed(tmp_path: Path, demo_out: Path):
+    plain = tmp_path / "trio.vcf"
+    with gzip.open(demo_inputs()["vcf"], "rt") as fh, open(plain, "w") as out:
+        shutil.copyfileobj(fh, out)
+    out = tmp_path / "out"
+    r = run("triage", str(plain), "--sample", "ARDEN-P1", "--ped", demo_inputs()["ped"],
+            "--phenopacket", demo_inputs()["phenopacket"], "--out", str(out), "--formats", "json", "--quiet")
+    assert r.returncode == 0, r.stderr
+    a = json.loads((out / "result.json").read_text())
+    b = json.loads((demo_out / "result.json").read_text())
+    assert [(f["key"], f["classification"]) for f in a["findings"]] == \
+        [(f["key"], f["classification"]) for f in b["findings"]]
