@@ -83,7 +83,7 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
         "exon": f.annotation.exon,
         "intron": f.annotation.intron,
         "annotation_source": f.annotation.source,
-        "protein_position": f.annotation.extra.get("Protein_position") or f.annotation.extra.get("protein_position"),
+        "protein_position": _protein_position(f.annotation.extra),
         "zygosity": call.zygosity if call else "no call",
         "genotype": genotype_string(call),
         "phased": bool(call.phased) if call else False,
@@ -126,6 +126,13 @@ def _jsonable(x: Any) -> Any:
     return str(x)
 
 
+def _protein_position(extra: dict[str, Any]) -> Optional[str]:
+    raw = extra.get("Protein_position") or extra.get("AA.pos / AA.length") or extra.get("protein_position")
+    if not raw:
+        return None
+    return str(raw).split("/")[0].strip() or None
+
+
 CLASS_ORDER = {c: i for i, c in enumerate(models.CLASSES)}
 
 
@@ -141,6 +148,8 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel) -> dict[str, Any]:
         "hgnc_id": gene.hgnc_id,
         "name": gene.name,
         "transcript": gene.refseq_transcript,
+        "refseq_protein": gene.refseq_protein,
+        "protein": _protein(h),
         "inheritance": list(gene.inheritance),
         "mechanisms": list(gene.mechanisms),
         "conditions": list(gene.conditions),
@@ -158,6 +167,18 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel) -> dict[str, Any]:
         "next_steps": list(h.next_steps),
         "notes": list(gene.notes),
     }
+
+
+def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
+    """Protein length as the annotation gives it ("356/533" in a Protein_position or AA.pos / AA.length field)."""
+    for f in h.findings:
+        for key in ("Protein_position", "AA.pos / AA.length", "protein_position"):
+            raw = str(f.annotation.extra.get(key) or "")
+            if "/" in raw:
+                tail = raw.rsplit("/", 1)[1].strip()
+                if tail.isdigit():
+                    return {"length": int(tail), "domains": []}
+    return None
 
 
 def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,

@@ -15,9 +15,12 @@ import json
 import random
 from pathlib import Path
 
+import sys
+
 import pysam
 
 ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
 OUT = ROOT / "demo_vcfs"
 
 # GRCh38 primary assembly lengths (GRC; also in the VCF headers of common GRCh38 releases).
@@ -139,7 +142,7 @@ def main() -> None:
         records.append((chrom, pos, ".", ref, alt, "612.4", "PASS", info, calls))
 
     # A multi-allelic site in PRPH2: the proband carries the first ALT, the father the second.
-    pr = ["0/1:16,14,0:30:99", "0/0:30,0,0:30:99", "0/2:14,0,15:29:99"]
+    pr = ["0/1:16,14,0:30:99", "0/0:30,0,0:30:99", "1/2:0,14,15:29:99"]
     ann = ",".join([
         csq("G", "PRPH2", "intron_variant", "MODIFIER", intron="1/2", c="c.582-1234T>C", gnomad_g="0.0041"),
         csq("T", "PRPH2", "intron_variant", "MODIFIER", intron="1/2", c="c.582-1234T>A", gnomad_g="0.0002"),
@@ -155,11 +158,16 @@ def main() -> None:
         records.append(("chrX", pos, ".", "A", "T" if i % 2 else "G", "250.0", "PASS",
                         f"AC=2;AN=5;DP=90;MQ=60.00;CSQ={ann}", calls))
 
-    # Background: thousands of ordinary calls outside the panel, as any exome has.
+    # Background: thousands of ordinary calls outside the panel genes, as any exome has.
+    from irdtriage.panel import GeneLocator, load_panel
+
+    locator = GeneLocator(load_panel(), "GRCh38", 1000)
     chroms = [c for c in GRCH38 if c not in ("chrY", "chrM")]
     for _ in range(4000):
         chrom = rng.choice(chroms)
         pos = rng.randint(1_000_000, GRCH38[chrom] - 1_000_000)
+        if locator.genes_at(chrom, pos):
+            continue
         ref = rng.choice("ACGT")
         alt = rng.choice([b for b in "ACGT" if b != ref])
         m, f = rng.choice(["0/1", "0/0", "1/1", "0/1"]), rng.choice(["0/1", "0/0", "0/1", "1/1"])
