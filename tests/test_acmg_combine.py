@@ -249,3 +249,38 @@ def test_empty_is_uncertain():
     assert (r.classification, r.points, r.point_class, r.bayes_class) == (
         "Uncertain significance", 0, "Uncertain significance", "Uncertain significance")
     assert r.posterior == pytest.approx(0.10)
+
+
+# ClinGen SVI Recommendation for Absence/Rarity (PM2), version 1.0 (approved September 2020):
+# PM2 is applied at Supporting and the combining rules gain "PVS1 AND PM2_Supporting ->
+# Likely pathogenic" (rule verified as transcribed in ClinGen expert-panel combining tables:
+# "The addition of the rule 'PVS1 AND PM2_Supporting' is the only modification made from the
+# original ACMG/AMP published guidelines for combining criteria"; the SVI PDF itself was not
+# read).  Tavtigian 2020 Table 3: 8 + 1 = 9 points is Likely pathogenic; Tavtigian 2018 formula
+# gives posterior 350**(9/8) * 0.1 / ((350**(9/8) - 1) * 0.1 + 1) = 0.988.
+def test_svi_pvs1_pm2_supporting_is_likely_pathogenic():
+    c = [CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting")]
+    res = combine(c)
+    assert res.rule_class == "Likely pathogenic"
+    assert "SVI 2020 amendment" in res.rule and "PM2_Supporting" in res.rule
+    assert res.points == 9 and res.point_class == "Likely pathogenic"
+    assert round(res.posterior, 3) == 0.988 and res.bayes_class == "Likely pathogenic"
+    assert res.note == ""  # all three methods agree
+
+
+def test_svi_amendment_is_narrow():
+    # Richards 2015 Table 5 alone: PVS1 + one supporting criterion other than PM2 is no rule.
+    assert rule_class([CriterionResult("PVS1", True, "VeryStrong"),
+                       CriterionResult("PP3", True, "Supporting")])[0] == "Uncertain significance"
+    # PVS1 lowered to Strong + PM2_Supporting: not the amendment's case (Strong + 1 Supporting).
+    assert rule_class([CriterionResult("PVS1", True, "Strong"),
+                       CriterionResult("PM2", True, "Supporting")])[0] == "Uncertain significance"
+    # PM2 at Moderate with PVS1 is Table 5 LP (i) already; the amendment does not relabel it.
+    assert rule_class([CriterionResult("PVS1", True, "VeryStrong"),
+                       CriterionResult("PM2", True, "Moderate")])[1].startswith("Likely pathogenic (i)")
+    # PVS1 + PM2_Supporting + another supporting: Table 5 Pathogenic (i)(d) wins.
+    assert rule_class([CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting"),
+                       CriterionResult("PP3", True, "Supporting")])[0] == "Pathogenic"
+    # Conflicting benign evidence still makes it Uncertain (Table 5 VUS (ii)).
+    assert rule_class([CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting"),
+                       CriterionResult("BP4", True, "Supporting")])[0] == "Uncertain significance"

@@ -26,6 +26,12 @@ Decisions documented here (they are ours, not the papers'):
 * Conflict: when any pathogenic and any benign criterion are both met, Table 5 "Uncertain
   significance (ii)" fires (criteria for benign and pathogenic are contradictory); the
   point and Bayesian results then show how the evidence nets out.
+* ClinGen SVI amendment to Table 5 (Recommendation for Absence/Rarity (PM2), version 1.0,
+  approved September 2020): with PM2 applied at Supporting, PVS1 + PM2_Supporting no longer
+  reaches any Table 5 rule, so the SVI added "PVS1 AND PM2_Supporting -> Likely pathogenic"
+  (it is 8 + 1 = 9 points, Likely pathogenic in Tavtigian 2020, posterior 0.988 in Tavtigian
+  2018).  Applied here only for PVS1 at Very Strong together with PM2 at Supporting, when no
+  Table 5 pathogenic rule fires; ``rule`` names the amendment.
 * Exactly 6 points (e.g. Likely pathogenic rule (ii), 1 Strong + 1 Moderate) gives a
   posterior of 0.89991 at prior 0.10; Tavtigian 2020 (Table 3 footnote) says the prior
   should be read as "infinitesimally greater than 0.10" so that these rules land in
@@ -128,8 +134,18 @@ def benign_rule(n: Counter, ba1: bool) -> tuple[str, str]:
     return UNCERTAIN, ""
 
 
+SVI_PVS1_PM2_RULE = ("Likely pathogenic (SVI 2020 amendment to Table 5): PVS1 and PM2_Supporting "
+                     "(ClinGen SVI PM2 recommendation v1.0)")
+
+
+def svi_pvs1_pm2(met: list[CriterionResult]) -> bool:
+    """PVS1 at Very Strong and PM2 at Supporting are both met (the SVI 2020 amendment's case)."""
+    return (any(c.code == "PVS1" and c.strength == "VeryStrong" for c in met)
+            and any(c.code == "PM2" and c.strength == "Supporting" for c in met))
+
+
 def rule_class(criteria: Iterable[CriterionResult]) -> tuple[str, str]:
-    """Richards 2015 Table 5 result and the rule that fired."""
+    """Richards 2015 Table 5 result (with the SVI 2020 PVS1 + PM2_Supporting amendment) and the rule."""
     met = _met(criteria)
     ba1 = any(c.code == "BA1" for c in met)
     if ba1:
@@ -139,6 +155,8 @@ def rule_class(criteria: Iterable[CriterionResult]) -> tuple[str, str]:
         return UNCERTAIN, "Uncertain significance (ii): pathogenic and benign criteria are contradictory"
     if sum(pc.values()):
         cls, rule = pathogenic_rule(pc)
+        if cls == UNCERTAIN and svi_pvs1_pm2(met):
+            cls, rule = LIKELY_PATHOGENIC, SVI_PVS1_PM2_RULE
     else:
         cls, rule = benign_rule(bc, False)
     if cls == UNCERTAIN:
