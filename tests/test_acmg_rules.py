@@ -71,3 +71,14 @@ def test_bad_yaml_and_missing_file(tmp_path):
     assert e.value.line
     with pytest.raises(InputError):
         load_rules(tmp_path / "nope.yaml")
+
+
+def test_absent_when_declared_empty_must_be_boolean(tmp_path):
+    text = _base().replace("absent_when_declared_empty: true", "absent_when_declared_empty: maybe")
+    line = text.splitlines().index("  absent_when_declared_empty: maybe") + 1
+    with pytest.raises(InputError) as e:
+        load_rules(_write(tmp_path, text))
+    assert e.value.line == line and "true or false" in e.value.problem
+    # optional: a rules file without the setting loads and treats it as off
+    text = _base().replace("  absent_when_declared_empty: true\n", "")
+    assert load_rules(_write(tmp_path, text)).frequency.get("absent_when_declared_empty", False) is False

@@ -190,3 +190,91 @@ def test_vep_spliceai_columns_and_nothing():
 def test_spliceai_string_parse():
     assert spliceai_from_string("T|ABCA4|0.00|0.80|0.10|0.00|1|2|3|4", "T", "ABCA4")["DS_AL"] == 0.8
     assert spliceai_from_string("garbage") is None
+
+
+# --- absence from a declared frequency resource ------------------------------------------------
+# An annotator run with a frequency resource writes an empty field for an allele the resource
+# does not hold (VCF 4.2 INFO with a header-declared "Format:" layout; the emptiness convention is
+# common practice for per-transcript annotation).  Read through pysam and the project's reader.
+CSQ_HEADER = ('##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations. '
+              'Format: Allele|Consequence|IMPACT|SYMBOL|Feature|HGVSc|HGVSp|EXON|gnomADe_AF|gnomADg_AF|MAX_AF">')
+
+
+@pytest.fixture
+def csq_vcf(tmp_path):
+    text = "\n".join([
+        "##fileformat=VCFv4.2", "##contig=<ID=3,length=198295559>", CSQ_HEADER,
+        "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO",
+        "3\t129528800\t.\tC\tT\t.\tPASS\tCSQ=T|stop_gained|HIGH|RHO|ENST00000296271|c.1C>T|p.Gln1Ter|1/5|||",
+        "3\t129528810\t.\tG\tA\t.\tPASS\tCSQ=A|missense_variant|MODERATE|RHO|ENST00000296271|c.2G>A|p.Arg2His|1/5|0.0004||0.0011",
+    ]) + "\n"
+    p = tmp_path / "csq.vcf"
+    p.write_text(text)
+    gz = str(p) + ".gz"
+    pysam.tabix_compress(str(p), gz)
+    pysam.tabix_index(gz, preset="vcf")
+    return gz
+
+
+def _csq_findings(path):
+    from irdtriage.consequence.annotations import annotation_layouts, pick_annotation
+
+    with pysam.VariantFile(path) as vf:
+        layouts = annotation_layouts(vf.header)
+        out = []
+        for rec in vf:
+            v = Variant(rec.chrom, rec.pos, rec.ref, rec.alts[0], info=dict(rec.info), original_ref=rec.ref,
+                        original_alts=tuple(rec.alts))
+            out.append((v, pick_annotation(v, layouts, None, ["RHO"])))
+    return layouts, out
+
+
+def test_declared_but_empty_frequency_is_absent(csq_vcf):
+    layouts, ((v_abs, a_abs), (v_obs, a_obs)) = _csq_findings(csq_vcf)
+    assert "gnomADe_AF" in layouts["CSQ"]
+    # the pipeline passes the declared layout: either through the config or as an argument
+    for ev in (collect_evidence(v_abs, a_abs, EvidenceConfig().with_layouts(layouts)),
+               collect_evidence(v_abs, a_abs, None, None, layouts=layouts)):
+        pop = ev["population"]
+        assert pop["absent_declared"] is True and pop["found"] is False
+        assert pop["af"] == 0.0 and pop["an"] is None
+        assert pop["note"] == "absent: empty gnomADe_AF/gnomADg_AF/MAX_AF in an annotation that declares them"
+    # without the declared layout the empty columns are invisible: no frequency data at all
+    assert collect_evidence(v_abs, a_abs)["population"] is None
+    # a declared column with a value is an observation, not absence
+    obs = collect_evidence(v_obs, a_obs, EvidenceConfig().with_layouts(layouts))["population"]
+    assert obs["af"] == pytest.approx(0.0004) and obs["popmax_af"] == pytest.approx(0.0011)
+    assert not obs.get("absent_declared")
+
+
+def test_absence_detected_from_empty_values_kept_in_extra():
+    # if the annotation keeps empty columns in Annotation.extra, no layout is needed
+    a = Annotation("RHO", extra={"gnomADe_AF": "", "gnomADg_AF": "."})
+    pop = collect_evidence(Variant("3", 5, "A", "G"), a)["population"]
+    assert pop["absent_declared"] is True and pop["declared_empty"] == ["gnomADe_AF", "gnomADg_AF"]
+    # a value for any declared frequency field in INFO means the allele is not absent
+    v = Variant("3", 5, "A", "G", info={"gnomADg_AF": 0.2})
+    assert collect_evidence(v, a)["population"]["af"] == pytest.approx(0.2)
+    # declared layout without any frequency column: nothing to conclude
+    cfg = EvidenceConfig().with_layouts({"CSQ": ["Allele", "Consequence", "SYMBOL", "REVEL"]})
+    assert collect_evidence(Variant("3", 5, "A", "G"), Annotation("RHO"), cfg)["population"] is None
+
+
+def test_absence_counts_for_pm2_only(csq_vcf, tmp_path):
+    layouts, ((v, a), _) = _csq_findings(csq_vcf)
+    ev = collect_evidence(v, a, EvidenceConfig().with_layouts(layouts))
+    g = Gene("RHO", "HGNC:10012", "RHO", "NM_000539.3", "", "", "+", Span("3", 1, 2), None, ("AD",), ("LOF",), (),
+             "x")
+    crit = {c.code: c for c in evaluate(Finding("F1", v, "RHO", a, evidence=ev), g, RULES)}
+    assert crit["PM2"].met is True and crit["PM2"].strength == "Supporting"
+    assert crit["PM2"].reason.startswith("absent: empty gnomADe_AF/gnomADg_AF/MAX_AF in an annotation")
+    assert crit["BA1"].met is False and crit["BS1"].met is False and crit["BS2"].met is None
+    # setting off (panels/criteria.yaml frequency.absent_when_declared_empty): no frequency data
+    from irdtriage.acmg.rules import default_path
+
+    text = default_path().read_text().replace("absent_when_declared_empty: true", "absent_when_declared_empty: false")
+    off = tmp_path / "criteria.yaml"
+    off.write_text(text)
+    crit = {c.code: c for c in evaluate(Finding("F1", v, "RHO", a, evidence=ev), g, load_rules(off))}
+    assert all(crit[c].met is None for c in ("BA1", "BS1", "PM2", "BS2"))
+    assert "absent_when_declared_empty is off" in crit["PM2"].reason

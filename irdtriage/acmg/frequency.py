@@ -89,11 +89,47 @@ def _fmt(x: Optional[float]) -> str:
     return "n/a" if x is None else (f"{x:.3g}" if x else "0")
 
 
+def _pm2_threshold(gene: Gene, f: dict, g: dict) -> tuple[float, str]:
+    if "pm2_max_af" in g:
+        return g["pm2_max_af"], g.get("spec", "gene specification")
+    if gene.dominant:
+        return f["pm2_max_af_dominant"], "dominant gene: absent"
+    return f["pm2_max_af_recessive"], "recessive gene"
+
+
+def _absent_declared(pop: dict, gene: Gene, rules: Rules) -> list[CriterionResult]:
+    """The annotation declares frequency columns and all are empty for this allele.
+
+    Absence supports PM2 only (setting ``frequency.absent_when_declared_empty``); it never drives
+    a benign criterion: BA1/BS1 are not met (no frequency above a cut-off was observed) and BS2
+    is not evaluable (no homozygote or heterozygote count; allele number unknown).
+    """
+    f, g = rules.frequency, rules.gene(gene.symbol)
+    note = pop.get("note") or "absent: empty frequency fields in an annotation that declares them"
+    obs = {k: pop.get(k) for k in ("af", "ac", "an", "nhomalt", "source", "declared_empty")}
+    if not f.get("absent_when_declared_empty", False):
+        off = f"{note}; not used (criteria setting frequency.absent_when_declared_empty is off): {NO_FREQ}"
+        return [result(c, None, None, off, **obs) for c in ("BA1", "BS1", "PM2", "BS2")]
+    t2, basis2 = _pm2_threshold(gene, f, g)
+    return [
+        result("BA1", False, None, f"{note}: no frequency above {g.get('ba1_af', f['ba1_af']):g} observed "
+               "(allele number unknown; absence never makes a benign criterion met)", **obs),
+        result("BS1", False, None, f"{note}: no frequency above a maximum credible AF observed "
+               "(allele number unknown)", **obs),
+        result("PM2", True, f["pm2_strength"], f"{note}; AF 0 <= {t2:g} ({basis2}); allele number unknown; "
+               f"applied at {f['pm2_strength']} (SVI 2020)", threshold=t2, **obs),
+        result("BS2", None, None, f"{note}: no homozygote or heterozygote counts (allele number unknown), "
+               "so BS2 cannot be assessed", **obs),
+    ]
+
+
 def evaluate_frequency(variant: Variant, ann: Optional[Annotation], gene: Gene, rules: Rules,
                        ev: dict) -> list[CriterionResult]:
     pop = ev.get("population")
     if not pop:
         return [result(c, None, None, NO_FREQ) for c in ("BA1", "BS1", "PM2", "BS2")]
+    if pop.get("absent_declared"):
+        return _absent_declared(pop, gene, rules)
     obs = _observed(pop, rules)
     f, g = rules.frequency, rules.gene(gene.symbol)
     exc = frequency_exception(variant, ann, gene, rules)
@@ -140,12 +176,7 @@ def evaluate_frequency(variant: Variant, ann: Optional[Annotation], gene: Gene, 
         out.append(result("BS1", False, None, f"{label} {_fmt(value)} <= {t:.3g} ({basis})", threshold=t, **obs))
 
     # PM2 at Supporting (SVI 2020): absent (dominant) / extremely rare (recessive).
-    if "pm2_max_af" in g:
-        t2, basis2 = g["pm2_max_af"], g.get("spec", "gene specification")
-    elif gene.dominant:
-        t2, basis2 = f["pm2_max_af_dominant"], "dominant gene: absent"
-    else:
-        t2, basis2 = f["pm2_max_af_recessive"], "recessive gene"
+    t2, basis2 = _pm2_threshold(gene, f, g)
     vals = [v for v in (obs["af"], obs["popmax_af"]) if v is not None]
     if not vals:
         out.append(result("PM2", None, None, "population record has no allele frequency", **obs))

@@ -23,6 +23,8 @@ _TOP = {"name", "version", "frequency", "in_silico", "pvs1", "pm4", "clinical_as
 _FREQ = {"ba1_af": (0, 1), "min_an": (0, 10**9), "continental": None, "pm2_strength": None,
          "pm2_max_af_dominant": (0, 1), "pm2_max_af_recessive": (0, 1), "faf_confidence": (0.5, 0.9999),
          "bs2_min_homozygotes": (1, 10**6), "bs2_min_heterozygotes_dominant": (1, 10**6)}
+# optional booleans (default False when absent)
+_FREQ_OPTIONAL = frozenset({"absent_when_declared_empty"})
 _INSILICO = {"scores": None, "spliceai_pp3": (0, 1), "spliceai_benign": (0, 1),
              "bp7_intron_donor_min": (1, 1000), "bp7_intron_acceptor_min": (1, 1000),
              "pp3_pm1_cap_points": (1, 8)}
@@ -117,8 +119,8 @@ class _Checker:
         if value not in STRENGTH_NAMES:
             self.fail(where, f"{where[-1]} must be one of {', '.join(STRENGTH_NAMES)}, got {value!r}")
 
-    def ranged(self, block, where, spec: dict):
-        self.mapping(block, where, set(spec), set(spec))
+    def ranged(self, block, where, spec: dict, optional: frozenset = frozenset()):
+        self.mapping(block, where, set(spec) | set(optional), set(spec))
         for k, rng in spec.items():
             if rng is not None:
                 self.number(block[k], where + (k,), *rng)
@@ -129,8 +131,11 @@ def _validate(data: Any, c: _Checker) -> None:
     for k in ("name", "version"):
         if not isinstance(data[k], str) or not data[k].strip():
             c.fail((k,), f"{k} must be a non-empty string")
-    c.ranged(data["frequency"], ("frequency",), _FREQ)
+    c.ranged(data["frequency"], ("frequency",), _FREQ, _FREQ_OPTIONAL)
     f = data["frequency"]
+    for k in _FREQ_OPTIONAL:
+        if k in f and not isinstance(f[k], bool):
+            c.fail(("frequency", k), f"{k} must be true or false")
     if not isinstance(f["continental"], list) or not all(isinstance(x, str) for x in f["continental"]):
         c.fail(("frequency", "continental"), "continental must be a list of population codes")
     c.strength(f["pm2_strength"], ("frequency", "pm2_strength"))

@@ -2,14 +2,22 @@
 
 ``collect_evidence(variant, annotation, config, sources) -> dict``; keys:
 
-* ``population``: dict (see popfreq.PopulationSource.lookup) or None when no frequency data;
+* ``population``: dict (see popfreq.PopulationSource.lookup) or None when no frequency data.
+  Absence from a declared resource: when the annotation layout declares population-frequency
+  columns (``EvidenceConfig.declared_fields``, or empty values kept in ``Annotation.extra``)
+  and every declared frequency field is empty for this allele (in the annotation and in INFO),
+  the record is ``{"found": False, "absent_declared": True, "af": 0.0, "an": None, ...}`` with
+  ``declared_empty`` naming the fields; the criteria rules decide whether it counts for PM2
+  (``frequency.absent_when_declared_empty``); it never supports BA1/BS1/BS2;
 * ``revel`` (+ ``revel_key``), ``spliceai`` (four delta scores) and ``spliceai_max``;
 * ``clinsig``: clinical significance written in INFO/annotation, or None;
 * ``clinical``: {same_variant, nearby} from a clinical-assertion VCF, or None without one;
-* ``scores``: {table name: value or None} from score tables.
+* ``scores``: {table name: value or None} from score tables;
+* ``build``: the genome build given to ``EvidenceSources.open`` (used by PVS1's transcript model).
 """
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import Any, Optional
 
@@ -28,13 +36,14 @@ class EvidenceSources:
     clinical: Optional[ClinicalSource] = None
     tables: list[ScoreTable] = field(default_factory=list)
     config: EvidenceConfig = field(default_factory=EvidenceConfig)
+    build: Optional[str] = None  # genome build of the patient VCF, passed on as evidence["build"]
 
     @classmethod
     def open(cls, popfreq_vcf: Optional[str] = None, clinical_vcf: Optional[str] = None,
              score_tables=(), build: Optional[str] = None,
              config: Optional[EvidenceConfig] = None) -> "EvidenceSources":
         cfg = config or EvidenceConfig()
-        src = cls(config=cfg)
+        src = cls(config=cfg, build=build)
         try:
             if popfreq_vcf:
                 src.population = PopulationSource(str(popfreq_vcf), cfg)
@@ -59,6 +68,29 @@ class EvidenceSources:
         self.close()
 
 
+def _empty(v: Any) -> bool:
+    return v is None or (isinstance(v, str) and v.strip() in ("", ".", "-")) or (
+        isinstance(v, (tuple, list)) and all(_empty(x) for x in v))
+
+
+def _absent_declared(variant: Variant, extra: dict, config: EvidenceConfig):
+    """The absence record when declared frequency columns are all empty for this allele, else None."""
+    declared = [k for k in config.declared_fields if config.frequency_field(k)]
+    declared += [k for k, v in extra.items() if k not in declared and config.frequency_field(k) and _empty(v)]
+    if not declared:
+        return None
+    for k in declared:
+        if not _empty(extra.get(k)) or not _empty(variant.info.get(k)):
+            return None
+    af_like = [k for k in declared if not re.search(r"(^|_)(ac|an)($|_)", k, re.IGNORECASE)] or declared
+    return {
+        "source": "annotation", "found": False, "absent_declared": True, "declared_empty": declared,
+        "af": 0.0, "ac": None, "an": None, "nhomalt": None, "populations": {},
+        "popmax_af": None, "popmax_population": None, "faf95": None, "faf95_population": None,
+        "note": f"absent: empty {'/'.join(af_like)} in an annotation that declares them",
+    }
+
+
 def _population_from_info(variant: Variant, annotation: Optional[Annotation], config: EvidenceConfig):
     extra = annotation.extra if annotation else {}
     af_key, af = lookup(config.af_keys, variant.info, extra)
@@ -68,7 +100,7 @@ def _population_from_info(variant: Variant, annotation: Optional[Annotation], co
     _, an = lookup(config.an_keys, variant.info, extra)
     _, hom = lookup(config.hom_keys, variant.info, extra)
     if af is None and popmax is None and faf is None and ac is None:
-        return None
+        return _absent_declared(variant, extra, config)
     ac_i, an_i = first_int(ac), first_int(an)
     af_f = max_number(af)
     if af_f is None and ac_i is not None and an_i:
@@ -101,9 +133,14 @@ def _spliceai(variant: Variant, annotation: Optional[Annotation], config: Eviden
 
 
 def collect_evidence(variant: Variant, annotation: Optional[Annotation], config: Optional[EvidenceConfig] = None,
-                     sources: Optional[EvidenceSources] = None) -> dict[str, Any]:
+                     sources: Optional[EvidenceSources] = None,
+                     layouts: Optional[dict[str, list[str]]] = None) -> dict[str, Any]:
+    """Evidence for one finding; ``layouts`` (declared CSQ/ANN field names) may be given here or
+    through ``config.with_layouts(layouts)``."""
     config = config or (sources.config if sources else EvidenceConfig())
-    ev: dict[str, Any] = {}
+    if layouts:
+        config = config.with_layouts(layouts)
+    ev: dict[str, Any] = {"build": sources.build if sources is not None else None}
     extra = annotation.extra if annotation else {}
     if sources is not None and sources.population is not None:
         ev["population"] = sources.population.lookup(variant.chrom, variant.pos, variant.ref, variant.alt)

@@ -7,7 +7,9 @@ VCF given with ``--population-vcf``; in the patient VCF only prefixed keys count
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+import re
+from dataclasses import dataclass, replace
+from typing import Iterable, Mapping
 
 
 @dataclass(frozen=True)
@@ -35,3 +37,29 @@ class EvidenceConfig:
     # clinical-assertion VCF: protein change of the asserted variant (see clinical.py)
     assertion_protein_keys: tuple[str, ...] = ("HGVSp", "HGVS_P", "PROTEIN_CHANGE", "CLNHGVSP", "MC_PROTEIN")
     assertion_gene_keys: tuple[str, ...] = ("GENEINFO", "GENE", "SYMBOL")
+    # Field names the patient VCF's annotation layouts declare (CSQ/ANN "Format:" in the header).
+    # A declared population-frequency column that is empty for this allele means the annotator
+    # ran with that resource and did not find the allele there (see collect.py).
+    declared_fields: tuple[str, ...] = ()
+
+    def with_layouts(self, layouts: Mapping[str, Iterable[str]]) -> "EvidenceConfig":
+        """A copy that knows the declared annotation fields ({"CSQ": [names], "ANN": [names]})."""
+        return replace(self, declared_fields=declared_fields(layouts))
+
+    def frequency_field(self, name: str) -> bool:
+        """Is this annotation/INFO field a population-frequency column (gnomAD/ExAC-style)?"""
+        known = self.af_keys + self.popmax_keys + self.faf_keys + self.ac_keys + self.an_keys
+        return name in known or name.lower() in {k.lower() for k in known} or bool(_FREQ_FIELD.match(name))
+
+
+_FREQ_FIELD = re.compile(r"^(gnomad[a-z]*|exac)_(.*_)?(af|ac|an)(_.*)?$|^max_af$", re.IGNORECASE)
+
+
+def declared_fields(layouts: Mapping[str, Iterable[str]] | None) -> tuple[str, ...]:
+    """All field names of the declared annotation layouts, in order, without repeats."""
+    out: list[str] = []
+    for fields in (layouts or {}).values():
+        for f in fields or ():
+            if f not in out:
+                out.append(str(f))
+    return tuple(out)
