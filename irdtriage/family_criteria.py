@@ -16,6 +16,11 @@ Sources and numbers
   homozygous 0.5 (homozygous occurrences count at most 1.0 in total). Strength from the
   sum: 0.5 Supporting, 1.0 Moderate, 2.0 Strong, 4.0 VeryStrong. The table rows were
   taken from memory of that document and could not be re-read with the search tool here.
+  Rarity: the SVI PM3 guidance counts only variants that are rare in population databases.
+  PM3 is *not met* for a finding whose own pass-1 criteria meet BA1 or BS1 (too common for
+  the disorder) or whose pass-1 class is Benign / Likely benign, with that reason; a partner
+  allele that is common in the same sense, or classed Benign / Likely benign, scores 0
+  points.
 * PS2 / PM6 — ClinGen SVI Recommendation for de novo Criteria (PS2 & PM6) Version 1.1
   (from memory): points per de novo occurrence by phenotype consistency — confirmed
   (maternity and paternity confirmed) 2 / 1 / 0.5 / 0 for a phenotype highly specific /
@@ -138,9 +143,25 @@ def family_criteria(gene: Gene, findings: Sequence[Finding], proband: str, sex: 
 
 
 # ---------------------------------------------------------------------------
+def common_reason(f: Finding) -> Optional[str]:
+    """Why ``f`` is not a rare allele for PM3 (BA1/BS1 met, or a benign pass-1 class); None when rare."""
+    met = [r for r in f.criteria if r.code in ("BA1", "BS1") and r.met]
+    if met:
+        r = met[0]
+        return f"{r.code} met ({r.reason})" if r.reason else f"{r.code} met"
+    c = _class(f)
+    if c in ("Benign", "Likely benign"):
+        return f"pass-1 class {c}"
+    return None
+
+
 def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq) -> CriterionResult:
     if not gene.recessive:
         return _r("PM3", False, f"{gene.symbol} has no recessive inheritance; PM3 applies to recessive disorders")
+    own = common_reason(f)
+    if own is not None:
+        return _r("PM3", False, f"not a rare allele: {own}; the SVI PM3 guidance counts only rare variants",
+                  points=0.0, common=True)
     if sex_n == "MALE" and is_x_nonpar(f.variant, build) and not ("AR" in gene.inheritance):
         return _r("PM3", False, "hemizygous on chrX in a male: no second allele to place in trans")
     c = _call(f, proband)
@@ -158,11 +179,14 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
         if gc is None:
             continue
         ph = phase_between(f, g, proband, mother, father, min_dp, min_gq)
-        if ph.phase == "cis":
+        partner_common = common_reason(g)
+        if ph.phase == "cis" or partner_common is not None:
             pts = 0.0
         else:
             pts = PM3_POINTS.get((ph.phase, gc), 0.0)
         obs.append({"partner": g.id, "partner_class": gc, "phase": ph.phase, "how": ph.how, "points": pts})
+        if partner_common is not None:
+            obs[-1]["partner_not_rare"] = partner_common
         if best is None or pts > best["points"]:
             best = obs[-1]
     if best is None:
@@ -172,6 +196,8 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
     desc = (f"{best['phase'] if best['phase'] != 'unknown' else 'phase unknown'} with {best['partner']} "
             f"({best['partner_class']}, pass-1 class): {pts} point(s) (SVI PM3 v1.0); one observation in "
             f"this person; phase: {best['how']}")
+    if "partner_not_rare" in best:
+        desc += f"; partner not a rare allele ({best['partner_not_rare']}), so it scores 0"
     if s is None:
         return _r("PM3", False, desc + "; below the 0.5 needed for Supporting", points=pts, observations=obs)
     return _r("PM3", True, desc, s, points=pts, observations=obs)

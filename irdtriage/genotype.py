@@ -22,7 +22,25 @@ Uncertain significance are *candidate* alleles: they may complete a biallelic or
 genotype fit (so a recessive gene is not dropped because one allele is a VUS), but the
 hypothesis built on them is weaker and is ranked and reported as a candidate, never as
 causative. Findings that fail the quality thresholds (``Finding.quality_flags``) never
-qualify; they are named in the notes so a reviewer can look at them.
+qualify; they are named in the notes so a reviewer can look at them. Benign and Likely
+benign findings never qualify, even when a caller lists those classes in ``qualifying``:
+no genotype fit (homozygous, hemizygous, biallelic, dominant) is ever built from them.
+
+Dominant mode and disease mechanism (``_dominant``)
+---------------------------------------------------
+A heterozygous allele completes a dominant fit only when its predicted effect matches a
+dominant mechanism of the gene. A *null* allele (Sequence Ontology consequence in
+``NULL_CONSEQUENCES``: stop gained, frameshift, canonical splice site, start lost, exon
+loss) is predicted loss of function, which is a disease mechanism only where the gene
+lists ``LOF`` (the first question of the ClinGen SVI PVS1 decision tree, Abou Tayoun et al.,
+Hum Mutat 2018;39:1517-1524). In a gene with both dominant and recessive inheritance whose
+mechanisms include a non-LOF one (``GOF`` or ``DN``), heterozygous loss of function is the
+carrier state of the recessive disease, so the dominant disease is taken to act through the
+non-LOF mechanism and a heterozygous null allele does not complete the dominant fit (it
+stays a single heterozygous allele in the recessive mode). In a dominant-only gene with
+``LOF`` among its mechanisms (haploinsufficiency, e.g. PRPF31) a heterozygous null or other
+rare qualifying allele is a complete dominant fit. (Reasoning from Mendelian genetics:
+common practice.)
 """
 from __future__ import annotations
 
@@ -45,6 +63,26 @@ PAR = {
 
 STRONG_CLASSES = ("Pathogenic", "Likely pathogenic")
 CANDIDATE_CLASSES = ("Uncertain significance",)
+BENIGN_CLASSES = ("Benign", "Likely benign")
+# Sequence Ontology terms of predicted null (loss-of-function) alleles (SO names as VEP writes them).
+NULL_CONSEQUENCES = frozenset({
+    "stop_gained", "frameshift_variant", "splice_donor_variant", "splice_acceptor_variant", "start_lost",
+    "exon_loss_variant", "transcript_ablation",
+})
+
+
+def is_null(f: Finding) -> bool:
+    """True when the finding's annotated consequence predicts a null allele (``NULL_CONSEQUENCES``)."""
+    return any(c in NULL_CONSEQUENCES for c in (f.annotation.consequence or ()))
+
+
+def null_fits_dominant(gene: Gene) -> bool:
+    """Whether a heterozygous null allele can complete a dominant fit in ``gene`` (see module docstring)."""
+    if "LOF" not in gene.mechanisms:
+        return False
+    if gene.recessive and any(m in ("GOF", "DN") for m in gene.mechanisms):
+        return False
+    return True
 
 
 def bare_chrom(chrom: str) -> str:
@@ -364,6 +402,9 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
             continue
         if cls not in qualifying:
             continue
+        if cls in BENIGN_CLASSES:
+            notes.append(f"{f.id} not counted: {cls} findings never make up a genotype fit")
+            continue
         alleles.append((f, c))
 
     x_nonpar = [f for f, _ in alleles if is_x_nonpar(f.variant, build)]
@@ -391,7 +432,21 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
                 if sex_n is None:
                     opt.notes.append("sex unknown: if male, this chrX call would be hemizygous")
         else:  # AD, or XLD in a female / unknown sex
-            opt = _dominant(alleles, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
+            dom = alleles
+            if not null_fits_dominant(gene):
+                dom = [(f, c) for f, c in alleles if not is_null(f)]
+            if dom:
+                opt = _dominant(dom, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
+            else:
+                opt = GenotypeAssessment("no qualifying finding", mode=mode)
+            if len(dom) < len(alleles):
+                kept = {f.id for f, _ in dom}
+                skipped = ", ".join(f.id for f, _ in alleles if f.id not in kept)
+                why = ("loss of function is not a listed mechanism of the gene" if "LOF" not in gene.mechanisms
+                       else "in this gene heterozygous loss of function is the recessive carrier state; its "
+                            "dominant disease acts through " + "/".join(m for m in gene.mechanisms if m != "LOF"))
+                notes.append(f"null allele(s) {skipped} not counted for {mode}: {why} (mechanism check, "
+                             f"ClinGen SVI PVS1 decision tree)")
         options.append(opt)
 
     best = min(options, key=lambda o: (FIT_PREFERENCE[o.fit], -o.strong_alleles, -len(o.qualifying_ids)))

@@ -175,3 +175,40 @@ def test_bs4_affected_relative_without_variant(tmp_path):
     # no relatives in the VCF -> not evaluable
     g = finding("E", 10, [call("KID", (0, 1))])
     assert crit(family_criteria(gene("PRPF31", ("AD",)), [g], "KID", None, pedigree=ped), "E", "PP1").met is None
+
+
+def _with(f, code, met=True):
+    from irdtriage.models import CriterionResult
+
+    f.criteria = [CriterionResult(code, met, "StandAlone" if code == "BA1" else "Strong" if met else None,
+                                  f"{code} test evidence")]
+    return f
+
+
+@pytest.mark.parametrize("code", ["BA1", "BS1"])
+def test_pm3_not_met_for_a_common_homozygous_variant(code):
+    # ClinGen SVI PM3 v1.0: only variants rare in population databases are counted (from memory of
+    # the document's rarity requirement); BA1/BS1 met means the allele is too common.
+    f = _with(finding("H", 100, [call("KID", (1, 1))]), code)
+    r = crit(family_criteria(gene("ABCA4"), [f], "KID", None), "H", "PM3")
+    assert r.met is False and code in r.reason and "rare" in r.reason and r.evidence["common"] is True
+    # the same genotype without the frequency criterion met does score (control)
+    f = _with(finding("H", 100, [call("KID", (1, 1))]), code, met=False)
+    assert crit(family_criteria(gene("ABCA4"), [f], "KID", None), "H", "PM3").met is True
+
+
+@pytest.mark.parametrize("cls", ["Benign", "Likely benign"])
+def test_pm3_not_met_for_a_benign_pass1_class(cls):
+    f = finding("H", 100, [call("KID", (1, 1))], cls=cls)
+    r = crit(family_criteria(gene("ABCA4"), [f], "KID", None), "H", "PM3")
+    assert r.met is False and cls in r.reason
+
+
+def test_pm3_common_partner_scores_zero():
+    # SVI PM3 v1.0 point table row "in trans with Pathogenic" = 1.0, but only for a rare partner.
+    a, b = trans_pair("Pathogenic")
+    assert crit(family_criteria(gene("ABCA4"), [a, b], "KID", None, mother="MUM", father="DAD"),
+                "A", "PM3").evidence["points"] == 1.0
+    _with(b, "BS1")
+    r = crit(family_criteria(gene("ABCA4"), [a, b], "KID", None, mother="MUM", father="DAD"), "A", "PM3")
+    assert r.met is False and r.evidence["points"] == 0.0 and "not a rare allele" in r.reason

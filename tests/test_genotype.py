@@ -335,3 +335,54 @@ def test_real_trio_vcf_through_pysam(tmp_path):
     assert is_de_novo(fs[3], "KID", "MUM", "DAD", proband_sex="MALE", build="GRCh38") is False
     ab = assess_gene(gene("ABCA4"), fs[:3], "KID", None, mother="MUM", father="DAD")
     assert ab.fit == "biallelic in trans"
+
+
+def _mech_gene(symbol, inheritance, mechanisms):
+    from dataclasses import replace
+
+    return replace(gene(symbol, inheritance), mechanisms=tuple(mechanisms))
+
+
+def test_benign_findings_never_make_a_fit_even_when_listed_as_qualifying():
+    # Common practice: Benign / Likely benign alleles never explain disease, whatever the zygosity.
+    every = ("Pathogenic", "Likely pathogenic", "Uncertain significance", "Likely benign", "Benign")
+    for cls in ("Benign", "Likely benign"):
+        hom = finding("H", 10, [call("KID", (1, 1))], cls=cls)
+        r = assess_gene(gene("ABCA4"), [hom], "KID", None, qualifying=every)
+        assert r.fit == "no qualifying finding" and not r.qualifying_ids
+        assert any("never make up a genotype fit" in n for n in r.notes)
+        hemi = finding("X", 38_300_000, [call("KID", (1,))], cls=cls, gene="RPGR", chrom="chrX")
+        assert assess_gene(gene("RPGR", ("XLR",), "X"), [hemi], "KID", "MALE", qualifying=every).fit == \
+            "no qualifying finding"
+        # a benign allele cannot be the second allele of a biallelic fit either
+        a, b = pair(((0, 1),), ((0, 1),))
+        b.classification.classification = cls
+        r = assess_gene(gene("ABCA4"), [a, b], "KID", None, qualifying=every)
+        assert r.fit == "single heterozygous in a recessive gene" and r.qualifying_ids == ["A"]
+
+
+def test_dominant_fit_follows_the_disease_mechanism():
+    # Mechanism check: loss of function must be a disease mechanism of the gene for a null allele
+    # (ClinGen SVI PVS1 decision tree, Abou Tayoun et al., Hum Mutat 2018;39:1517-1524, first step);
+    # in a gene whose recessive disease is loss of function, heterozygous loss of function is the
+    # carrier state, so its dominant disease acts otherwise (Mendelian reasoning, common practice).
+    null = finding("N", 10, [call("KID", (0, 1))])
+    null.annotation.consequence = ("frameshift_variant",)
+    missense = finding("M", 20, [call("KID", (0, 1))])
+    missense.annotation.consequence = ("missense_variant",)
+    nrl_like = _mech_gene("NRL", ("AD", "AR"), ("GOF", "LOF"))
+    r = assess_gene(nrl_like, [null], "KID", None)
+    assert r.fit == "single heterozygous in a recessive gene" and r.mode == "AR"
+    assert any("not counted for AD" in n for n in r.notes)
+    assert assess_gene(nrl_like, [missense], "KID", None).fit == "heterozygous in a dominant gene"
+    # a null and a missense allele together: the recessive biallelic fit, as published for NRL cases
+    assert assess_gene(nrl_like, [null, missense], "KID", None).fit == "biallelic phase unknown"
+    # haploinsufficient dominant gene (LOF only): a heterozygous null allele is a complete fit
+    prpf31_like = _mech_gene("PRPF31", ("AD",), ("LOF",))
+    r = assess_gene(prpf31_like, [null], "KID", None)
+    assert r.fit == "heterozygous in a dominant gene" and r.qualifying_ids == ["N"]
+    assert assess_gene(prpf31_like, [missense], "KID", None).fit == "heterozygous in a dominant gene"
+    # dominant gene acting by gain of function only: a null allele does not fit
+    gof_only = _mech_gene("GOFGENE", ("AD",), ("GOF",))
+    assert assess_gene(gof_only, [null], "KID", None).fit == "no qualifying finding"
+    assert assess_gene(gof_only, [missense], "KID", None).fit == "heterozygous in a dominant gene"

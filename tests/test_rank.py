@@ -48,12 +48,52 @@ def test_carrier_ranks_below_every_fitting_complete_or_biallelic_fit():
                         "heterozygous in a dominant gene", "de novo")]
     for fit, ca, cb, c, conflict in itertools.product(
             fits, ("Pathogenic", "Likely pathogenic", "Uncertain significance"),
-            ("Pathogenic", "Likely pathogenic", "Uncertain significance"), (0.5, 0.75, 1.0), (False, True)):
+            ("Pathogenic", "Likely pathogenic", "Uncertain significance"), (0.0, 0.25, 0.5, 0.75, 1.0),
+            (False, True)):
         a, b = trans(ca, cb, "G")
         h = GeneHypothesis(symbol="G", findings=[a, b], genotype_fit=fit,
                            phenotype_match=pheno("G", c, ["HP:0000505"] if conflict else []))
         g = gene("G", ("AD", "AR"))
         assert score_hypothesis(h, g) > best_carrier, (fit, ca, cb, c, conflict)
+
+
+def test_carrier_below_complete_fit_without_phenotype_and_no_fit_scores_zero():
+    # common practice: a carrier state does not explain disease, whatever the phenotype says
+    g_ar = gene("CARRIERGENE")
+    carrier = hyp(g_ar, [finding("C", 10, [call("KID", (0, 1))], gene="CARRIERGENE")], match=pheno("CARRIERGENE", 1.0))
+    vus = finding("V", 10, [call("KID", (1, 1))], cls="Uncertain significance", gene="G")
+    h = hyp(gene("G"), [vus])  # homozygous VUS, no phenotype given
+    assert h.genotype_fit == "homozygous"
+    assert score_hypothesis(h, gene("G")) > score_hypothesis(carrier, g_ar)
+    ranked = rank_hypotheses([carrier, h], panel(g_ar, gene("G")))
+    assert [x.symbol for x in ranked] == ["G", "CARRIERGENE"]
+    # only benign findings: no fit, score 0 even with a perfect phenotype match
+    lb = finding("L", 10, [call("KID", (1, 1))], cls="Likely benign", gene="LBG")
+    h0 = hyp(gene("LBG"), [lb], match=pheno("LBG", 1.0))
+    assert h0.genotype_fit == "no qualifying finding" and score_hypothesis(h0, gene("LBG")) == 0.0
+    assert rank_hypotheses([h0, carrier], panel(g_ar, gene("LBG")))[0].symbol == "CARRIERGENE"
+
+
+def test_phenotype_breaks_near_ties_only():
+    # common practice: allele evidence first; the phenotype match orders genes whose genotypes are alike
+    g1, g2 = gene("AAA"), gene("BBB", ("AD",))
+    strong = hyp(g1, trans(gene_name="AAA"), match=pheno("AAA", 0.0), mother="MUM", father="DAD")
+    weak = hyp(g2, [finding("W", 10, [call("KID", (0, 1))], cls="Uncertain significance", gene="BBB")],
+               match=pheno("BBB", 1.0))
+    assert strong.genotype_fit == "biallelic in trans" and weak.genotype_fit == "heterozygous in a dominant gene"
+    assert rank_hypotheses([weak, strong], panel(g1, g2))[0].symbol == "AAA"
+    # same fit and classes: the better phenotype match wins
+    h1 = hyp(gene("CCC"), trans(gene_name="CCC"), match=pheno("CCC", 0.2), mother="MUM", father="DAD")
+    h2 = hyp(gene("DDD"), trans(gene_name="DDD"), match=pheno("DDD", 0.8), mother="MUM", father="DAD")
+    assert rank_hypotheses([h1, h2], panel(gene("CCC"), gene("DDD")))[0].symbol == "DDD"
+    # the phenotype moves a score by at most PHENOTYPE_SHARE
+    from irdtriage.rank import PHENOTYPE_SHARE
+
+    lo = score_hypothesis(hyp(gene("CCC"), trans(gene_name="CCC"), match=pheno("CCC", 0.0, ["HP:0000510"]),
+                              mother="MUM", father="DAD"), gene("CCC"))
+    hi = score_hypothesis(hyp(gene("CCC"), trans(gene_name="CCC"), match=pheno("CCC", 1.0),
+                              mother="MUM", father="DAD"), gene("CCC"))
+    assert 0 < hi - lo <= PHENOTYPE_SHARE + 1e-9
 
 
 def test_hemizygous_male_above_heterozygous_female_in_xlr_gene():
