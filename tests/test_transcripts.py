@@ -1,0 +1,123 @@
+"""Transcript exon model (irdtriage.transcripts) and its use by PVS1.
+
+Sources beside each check:
+* 50-nt rule: Abou Tayoun et al., Hum Mutat 2018;39:1517-1524 - a premature stop in the last
+  exon or in the 3'-most 50 nt of the penultimate exon is not predicted to trigger NMD.
+* The packaged panels/transcripts.yaml exons are copied from the GENCODE-derived canonical
+  tables (PyPI spliceai 1.3.1) for genes whose transcript ends equal the MANE v1.5 Select span;
+  tests/external/test_transcripts_refdata.py re-derives the file from those tables.
+  MKKS on the minus strand (MANE v1.5: chr20 10,401,009-10,434,222, "-"), 6 exons in that table.
+* Positions and distances below are hand-computed from those exon coordinates (arithmetic).
+"""
+import pytest
+
+from irdtriage.acmg.engine import evaluate
+from irdtriage.acmg.pvs1 import evaluate_pvs1
+from irdtriage.acmg.rules import load_rules
+from irdtriage.errors import InputError
+from irdtriage.models import Annotation, Finding, Gene, Span, Variant
+from irdtriage.transcripts import Transcript, load_transcripts, locate, locate_in, nmd_predicted
+
+RULES = load_rules()
+MODEL = load_transcripts()
+# transcript order for MKKS (- strand): exon 1 = [10434108, 10434222] ... exon 6 = [10401009, 10405687]
+MKKS = MODEL.get("MKKS", "GRCh38")
+
+
+def test_packaged_model_loads_and_is_mane_bounded():
+    assert MKKS is not None and MKKS.strand == "-" and MKKS.exon_count == 6
+    assert (MKKS.exons[0][0], MKKS.exons[-1][1]) == (10401009, 10434222)  # MANE v1.5 MKKS span
+    assert MKKS.refseq == "NM_170784.3"
+
+
+def test_locate_minus_strand_orientation():
+    first = locate("MKKS", "GRCh38", 10434222)  # 5'-most base of the transcript
+    assert first.exon_number == 1 and first.in_exon and first.nt_to_exon_end == 115  # 10434222-10434108+1
+    last = locate("MKKS", "GRCh38", 10401009)
+    assert last.exon_number == 6 and last.distance_to_last_junction_nt is None
+    # penultimate exon (5) is [10407616, 10407726]; its 3' end on the minus strand is 10407616
+    assert locate("MKKS", "GRCh38", 10407616).distance_to_last_junction_nt == 1
+    assert locate("MKKS", "GRCh38", 10407726).distance_to_last_junction_nt == 111
+    # exon 4 [10408628, 10408803]: distance adds the whole penultimate exon (111 nt)
+    assert locate("MKKS", "GRCh38", 10408628).distance_to_last_junction_nt == 1 + 111
+    intr = locate("MKKS", "GRCh38", 10407000)  # between exons 6 and 5 in transcript order
+    assert (intr.in_exon, intr.intron_number, intr.exon_number) == (False, 5, None)
+    assert locate("MKKS", "GRCh38", 10400000) is None and locate("MKKS", "GRCh37", 10401009) is not None
+    assert locate("NOSUCHGENE", "GRCh38", 1) is None
+
+
+def test_fifty_nt_rule_boundary():  # Abou Tayoun 2018: last 50 nt of the penultimate exon escape NMD
+    tx = Transcript("T", "GRCh38", "1", "+", ((100, 199), (300, 499), (600, 800)))
+    # penultimate exon 2 ends at 499; a stop needs > 50 nt (+2 nt codon slack) before the junction
+    assert nmd_predicted(locate_in(tx, 499 - 52), "stop")[0] is True     # 53 nt -> 51 after slack
+    assert nmd_predicted(locate_in(tx, 499 - 51), "stop")[0] is False    # 52 nt -> 50
+    assert nmd_predicted(locate_in(tx, 700), "stop")[0] is False          # last exon
+    assert nmd_predicted(locate_in(tx, 150), "stop")[0] is True           # exon 1: 50 + 200 nt
+    assert nmd_predicted(locate_in(tx, 250), "stop")[0] is None           # intronic: no stop position
+    # frameshift: new stop downstream; fsTer20 moves it ~60 nt 3'
+    assert nmd_predicted(locate_in(tx, 380), "frameshift", 20)[0] is True    # 120 - 60 - 2 = 58 > 50
+    assert nmd_predicted(locate_in(tx, 400), "frameshift", 20)[0] is False   # 100 - 62 = 38
+    # unknown new stop: penultimate exon not claimed, earlier exon claimed by the exon rule
+    assert nmd_predicted(locate_in(tx, 300), "frameshift")[0] is None
+    ok, why = nmd_predicted(locate_in(tx, 150), "frameshift")
+    assert ok is True and "unknown distance" in why
+
+
+def _mkks_gene():
+    return Gene("MKKS", "HGNC:7108", "MKKS", "NM_170784.3", "", "", "-", Span("20", 10401009, 10434222), None,
+                ("AR",), ("LOF",), (), "x")
+
+
+def test_pvs1_uses_model_when_exon_not_annotated():  # decision tree with NMD from the model
+    a = Annotation("MKKS", "NM_170784.3", ("stop_gained",), "c.100C>T", "p.(Arg34Ter)", exon="", is_mane=True)
+    v = Variant("chr20", 10408700, "G", "A")
+    r = evaluate_pvs1(a, _mkks_gene(), RULES, v, "GRCh38")
+    assert (r.met, r.strength) == (True, "VeryStrong") and "transcript model" in r.reason
+    assert r.evidence["transcript_model"]["exon_number"] == 4
+    # without a build the model is not used: conservative Moderate, reason says why
+    r0 = evaluate_pvs1(a, _mkks_gene(), RULES, v, None)
+    assert r0.strength == "Moderate" and "genome build not known" in r0.reason
+
+
+def test_pvs1_last_exon_share_from_protein_position():  # Abou Tayoun 2018: > 10 % removed -> Strong
+    a = Annotation("MKKS", "NM_170784.3", ("stop_gained",), "c.1500C>T", "p.(Arg500Ter)", is_mane=True,
+                   extra={"Protein_position": "500/570"})
+    r = evaluate_pvs1(a, _mkks_gene(), RULES, Variant("20", 10402000, "G", "A"), "GRCh38")
+    assert r.evidence["nmd_predicted"] is False and "last exon" in r.reason
+    assert r.strength == "Strong" and r.evidence["removed_fraction"] == pytest.approx(71 / 570, abs=1e-4)
+    a.extra["Protein_position"] = "560/570"
+    assert evaluate_pvs1(a, _mkks_gene(), RULES, Variant("20", 10402000, "G", "A"), "GRCh38").strength == "Moderate"
+
+
+def test_pvs1_model_ignored_when_annotation_disagrees():
+    a = Annotation("MKKS", "NM_170784.3", ("stop_gained",), "c.100C>T", "p.(Arg34Ter)", exon="2/9", is_mane=True)
+    r = evaluate_pvs1(a, _mkks_gene(), RULES, Variant("20", 10408700, "G", "A"), "GRCh38")
+    assert r.evidence["transcript_model"] is None and "disagrees" in r.evidence["transcript_model_note"]
+    assert r.strength == "VeryStrong" and "exon 2/9" in r.reason  # the annotation's own exon rule
+
+
+def test_engine_takes_build_from_evidence():
+    a = Annotation("MKKS", "NM_170784.3", ("frameshift_variant",), "c.100del", "p.(Gly34AlafsTer5)",
+                   is_mane=True)
+    f = Finding("F1", Variant("20", 10408700, "GC", "G"), "MKKS", a,
+                evidence={"population": None, "build": "GRCh38"})
+    crit = {c.code: c for c in evaluate(f, _mkks_gene(), RULES)}
+    assert crit["PVS1"].strength == "VeryStrong" and "fsTer5" in crit["PVS1"].reason
+    assert len(crit) == 28
+
+
+def test_loader_errors_name_the_line(tmp_path):
+    good = (tmp_path / "ok.yaml")
+    text = ("name: t\nversion: '1'\ntranscripts:\n- symbol: X\n  strand: '+'\n  mane_boundaries_match: true\n"
+            "  grch38:\n    chrom: '1'\n    exons:\n    - [10, 20]\n    - [30, 40]\n")
+    good.write_text(text)
+    assert load_transcripts(good).get("X", "GRCh38").exon_count == 2
+    bad = tmp_path / "bad.yaml"
+    bad.write_text(text.replace("- [30, 40]", "- [15, 40]"))
+    with pytest.raises(InputError) as e:
+        load_transcripts(bad)
+    assert e.value.line == 11 and "overlaps" in e.value.problem
+    bad.write_text(text.replace("mane_boundaries_match: true", "mane_boundaries_match: false"))
+    with pytest.raises(InputError) as e:
+        load_transcripts(bad)
+    assert e.value.line == 6
