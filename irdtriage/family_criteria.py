@@ -61,6 +61,9 @@ PM3_POINTS = {
     ("unknown", "Likely pathogenic"): 0.25,
     ("unknown", "Uncertain significance"): 0.0,
 }
+PM3_PARTNER_CLASSES = ("Pathogenic", "Likely pathogenic", "Uncertain significance")
+PM3_MAX_UNCERTAIN_PARTNERS = 100  # bound on pairwise phasing per finding (performance, not a guideline)
+PM3_MAX_OBSERVATIONS_SHOWN = 10
 PM3_HOMOZYGOUS = 0.5
 PM3_HOMOZYGOUS_CAP = 1.0
 
@@ -174,10 +177,20 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
                   s, points=pts, observations=[{"kind": "homozygous", "points": pts}])
     best = None
     obs = []
-    for g in others:
+    # Only partners that can score points are phased: a common partner or a benign class scores 0
+    # whatever its phase. Uncertain partners can score only in trans; when a gene holds very many
+    # of them (an unannotated genome), they are not phased one by one (reported in the reason).
+    partners = [g for g in others if _class(g) in PM3_PARTNER_CLASSES and common_reason(g) is None]
+    vus = [g for g in partners if _class(g) == "Uncertain significance"]
+    skipped_vus = 0
+    if len(vus) > PM3_MAX_UNCERTAIN_PARTNERS:
+        skipped_vus = len(vus)
+        partners = [g for g in partners if _class(g) != "Uncertain significance"]
+    partners.sort(key=lambda g: PM3_PARTNER_CLASSES.index(_class(g)))
+    for g in partners:
         gc = _class(g)
-        if gc is None:
-            continue
+        if best is not None and best["points"] >= max(PM3_POINTS.get((ph_, gc), 0.0) for ph_ in ("trans", "unknown")):
+            continue  # this partner cannot beat the best observation so far
         ph = phase_between(f, g, proband, mother, father, min_dp, min_gq)
         partner_common = common_reason(g)
         if ph.phase == "cis" or partner_common is not None:
@@ -189,8 +202,17 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
             obs[-1]["partner_not_rare"] = partner_common
         if best is None or pts > best["points"]:
             best = obs[-1]
+    if skipped_vus:
+        extra_note = (f"; {skipped_vus} other allele(s) of uncertain significance in this gene were not phased "
+                      f"one by one (more than {PM3_MAX_UNCERTAIN_PARTNERS}; annotate and filter the VCF first)")
+    else:
+        extra_note = ""
     if best is None:
-        return _r("PM3", False, "no second classified allele in this gene in this person", points=0.0)
+        return _r("PM3", False, "no second rare allele classified Pathogenic, Likely pathogenic or of uncertain "
+                                "significance in this gene in this person" + extra_note, points=0.0)
+    obs.sort(key=lambda o: -o["points"])
+    if len(obs) > PM3_MAX_OBSERVATIONS_SHOWN:
+        obs = obs[:PM3_MAX_OBSERVATIONS_SHOWN] + [{"more_partners_not_shown": len(obs) - PM3_MAX_OBSERVATIONS_SHOWN}]
     pts = best["points"]
     s = points_to_strength(pts)
     desc = (f"{best['phase'] if best['phase'] != 'unknown' else 'phase unknown'} with {best['partner']} "
@@ -198,6 +220,7 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
             f"this person; phase: {best['how']}")
     if "partner_not_rare" in best:
         desc += f"; partner not a rare allele ({best['partner_not_rare']}), so it scores 0"
+    desc += extra_note
     if s is None:
         return _r("PM3", False, desc + "; below the 0.5 needed for Supporting", points=pts, observations=obs)
     return _r("PM3", True, desc, s, points=pts, observations=obs)

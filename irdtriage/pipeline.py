@@ -142,7 +142,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         ))
 
     # 6. evidence -------------------------------------------------------------------
-    ev_config = EvidenceConfig()
+    ev_config = EvidenceConfig().with_layouts(layouts)
     sources = EvidenceSources.open(popfreq_vcf=opts.popfreq_vcf, clinical_vcf=opts.clinical_vcf,
                                    score_tables=list(opts.score_tables or ()), build=intake.build)
     try:
