@@ -19,6 +19,10 @@ def atomic_path(target: Union[str, Path]) -> Iterator[Path]:
     fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=target.parent)
     os.close(fd)
     tmp_path = Path(tmp)
+    # mkstemp creates 0600; give the finished file the permissions an ordinary open() would.
+    umask = os.umask(0)
+    os.umask(umask)
+    os.chmod(tmp_path, 0o666 & ~umask)
     try:
         yield tmp_path
         os.replace(tmp_path, target)

@@ -81,6 +81,8 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--min-dp", type=int, default=None, help="minimum read depth (default 8)")
     t.add_argument("--min-gq", type=int, default=None, help="minimum genotype quality (default 20)")
     t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
+    t.add_argument("--all-variants", action="store_true",
+                   help="also report common alleles (BA1) and intronic/flanking alleles without splice evidence")
     add_output_opts(t, "irdtriage-results")
 
     d = sub.add_parser("demo", help="run the bundled invented demo family (offline)")
@@ -191,7 +193,7 @@ def cmd_triage(args, argv) -> int:
         sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
         curated_path=args.curated, popfreq_vcf=args.population_vcf, clinical_vcf=args.clinical_vcf,
-        score_tables=args.scores, quality=_quality(args),
+        score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv),
     )
     for label, path in (("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped)):

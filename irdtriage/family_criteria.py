@@ -124,6 +124,8 @@ def family_criteria(gene: Gene, findings: Sequence[Finding], proband: str, sex: 
         raise ValueError(f"phenotype_specificity must be one of {sorted(DE_NOVO_POINTS)}")
     sex_n = sex.upper() if isinstance(sex, str) else None
     carried = [f for f in findings if carries(_call(f, proband))]
+    eligible = {id(g) for g in carried
+                if g.passes_quality and _class(g) in PM3_PARTNER_CLASSES and common_reason(g) is None}
     out: dict[str, list[CriterionResult]] = {}
     for f in carried:
         res: list[CriterionResult] = []
@@ -134,7 +136,8 @@ def family_criteria(gene: Gene, findings: Sequence[Finding], proband: str, sex: 
             out[f.id] = res
             continue
         others = [g for g in carried if g is not f and g.passes_quality]
-        res.append(_pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq))
+        res.append(_pm3(gene, f, [g for g in others if id(g) in eligible], proband, sex_n, mother, father,
+                        build, min_dp, min_gq))
         res.append(_bp2(gene, f, others, proband, mother, father, fully_penetrant, min_dp, min_gq))
         res.extend(_de_novo(gene, f, proband, mother, father, sex_n, build, parentage_confirmed,
                             phenotype_specificity, min_dp, min_gq))
@@ -180,7 +183,7 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
     # Only partners that can score points are phased: a common partner or a benign class scores 0
     # whatever its phase. Uncertain partners can score only in trans; when a gene holds very many
     # of them (an unannotated genome), they are not phased one by one (reported in the reason).
-    partners = [g for g in others if _class(g) in PM3_PARTNER_CLASSES and common_reason(g) is None]
+    partners = list(others)  # the caller passes only rare partners of a scoring class (eligible)
     vus = [g for g in partners if _class(g) == "Uncertain significance"]
     skipped_vus = 0
     if len(vus) > PM3_MAX_UNCERTAIN_PARTNERS:

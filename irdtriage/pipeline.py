@@ -46,6 +46,7 @@ class TriageOptions:
     padding: int = 50
     quality: Any = None  # irdtriage.vcf.QualityThresholds
     command: str = ""
+    all_variants: bool = False  # report common and silent non-coding alleles too
     phenotype_matcher: Any = None  # reuse a loaded matcher across cases (benchmarks)
     extra_warnings: list[str] = field(default_factory=list)
 
@@ -184,6 +185,21 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     for f in findings:
         classify(f, pheno_criteria(f))
 
+    # Reporting filter: common alleles (BA1 met) and intronic/flanking alleles with no sign of a
+    # splice effect are counted, not reported, unless --all-variants (see DEVELOPERS.md).
+    counts_extra = {"common_not_reported": 0, "noncoding_not_reported": 0}
+    if not opts.all_variants:
+        kept = []
+        for f in findings:
+            why = _not_reported(f, curated)
+            if why is None:
+                kept.append(f)
+            else:
+                counts_extra[why] += 1
+        findings = kept
+    for i, f in enumerate(findings, 1):
+        f.id = f"F{i}"
+
     # 9-10. family criteria, ACMG pass 2 -------------------------------------------
     from .family_criteria import family_criteria
     from .genotype import assess_gene
@@ -192,11 +208,15 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     for f in findings:
         by_gene.setdefault(f.gene, []).append(f)
 
+    by_chrom: dict[str, list[models.Variant]] = {}
+    for v in intake.variants:
+        by_chrom.setdefault(v.chrom_bare, []).append(v)
+
     def assess_all() -> dict[str, Any]:
         out = {}
         for symbol, gene_findings in by_gene.items():
-            context = [v for v in intake.variants if v.chrom_bare == panel.genes[symbol].span(intake.build).chrom] \
-                if panel.genes[symbol].span(intake.build) else []
+            span = panel.genes[symbol].span(intake.build)
+            context = by_chrom.get(span.chrom, []) if span else []
             out[symbol] = assess_gene(panel.genes[symbol], gene_findings, proband, sex, mother=mother,
                                       father=father, build=intake.build, context=context)
         return out
@@ -233,8 +253,31 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         vcf_path=vcf_path, opts=opts, started=started, panel=panel, rules=rules, intake=intake,
         proband=proband, sex=sex, sex_source=sex_source, inferred_sex=sex_inf.sex,
         mother=mother, father=father, affected=affected, profile=profile, retinal=retinal,
-        findings=findings, ranked=ranked, call=call, warnings=warnings,
+        findings=findings, ranked=ranked, call=call, warnings=warnings, counts_extra=counts_extra,
     )
+
+
+# Consequences that on their own say nothing about the protein or splicing (Sequence Ontology terms).
+SILENT_NONCODING = frozenset({
+    "intron_variant", "upstream_gene_variant", "downstream_gene_variant", "intergenic_variant",
+    "regulatory_region_variant", "TF_binding_site_variant",
+})
+SPLICE_SIGNAL = 0.2  # SpliceAI delta at which splicing evidence starts (Walker et al. 2023)
+
+
+def _not_reported(f: models.Finding, curated: dict) -> Optional[str]:
+    """Why an allele is counted but not reported as a finding, or None to report it."""
+    if f.variant.key in curated:
+        return None
+    if any(c.code == "BA1" and c.met for c in f.criteria):
+        return "common_not_reported"
+    terms = set(f.annotation.consequence)
+    if terms and terms <= SILENT_NONCODING:
+        splice = f.evidence.get("spliceai_max") if isinstance(f.evidence, dict) else None
+        asserted = any(c.code in ("PS1", "PP5") and c.met for c in f.criteria)
+        if (splice is None or splice < SPLICE_SIGNAL) and not asserted:
+            return "noncoding_not_reported"
+    return None
 
 
 STRONG_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")

@@ -182,7 +182,8 @@ def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
 
 
 def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,
-                 mother, father, affected, profile, retinal, findings, ranked, call, warnings) -> dict[str, Any]:
+                 mother, father, affected, profile, retinal, findings, ranked, call, warnings,
+                 counts_extra=None) -> dict[str, Any]:
     inputs = [{"role": "vcf", "path": str(vcf_path), "sha256": sha256_file(vcf_path)}]
     for role, p in (("ped", opts.ped), ("phenopacket", opts.phenopacket), ("panel", opts.panel_path),
                     ("rules", opts.rules_path), ("curated", opts.curated_path),
@@ -203,6 +204,7 @@ def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex,
             pass
     ordered_findings = [f for h in ranked for f in h.findings]
     counts = dict(intake.counts)
+    counts.update(counts_extra or {})
     counts["findings"] = len(findings)
     return {
         "schema_version": SCHEMA_VERSION,

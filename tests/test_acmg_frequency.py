@@ -127,9 +127,30 @@ def test_bs1_uses_filtering_af_against_max_credible():
     assert run("ABCA4", p, hgvs_c="c.1A>G", hgvs_p="p.(Met1?)")["BS1"].met is False
 
 
-def test_bs1_not_evaluable_without_curated_threshold():
-    r = run("CLN3", pop(0.001))["BS1"]
-    assert r.met is None and "max_credible" in r.reason
+def test_bs1_falls_back_to_panel_default():
+    # Whiffin 2017 recessive form with the panel-wide default figures in criteria.yaml:
+    # 0.5 * sqrt(0.0005 * 0.3 / 1) = 0.006124 (arithmetic check of the documented derivation).
+    t = max_credible_af(0.0005, 0.5, 0.3, 1.0, "recessive")
+    assert t == pytest.approx(0.0061237, rel=1e-4)
+    low = run("CLN3", pop(0.001))["BS1"]
+    assert low.met is False and "panel-wide default" in low.reason
+    high = run("CLN3", pop(0.02, an=200000))["BS1"]
+    assert high.met is True and high.strength == "Strong"
+
+
+def test_bs1_not_evaluable_without_any_threshold(tmp_path):
+    import yaml
+    from irdtriage.acmg.rules import default_path
+
+    data = yaml.safe_load(open(default_path()))
+    data.pop("default_max_credible")
+    p = tmp_path / "rules.yaml"
+    p.write_text(yaml.safe_dump(data))
+    rules = load_rules(p)
+    a = Annotation("CLN3", "NM_0.1", ("missense_variant",), "c.100A>G", "p.(Lys34Glu)")
+    res = {r.code: r for r in evaluate_frequency(Variant("1", 100, "A", "G"), a, gene("CLN3"), rules,
+                                                 {"population": pop(0.001)})}
+    assert res["BS1"].met is None and "max_credible" in res["BS1"].reason
 
 
 def test_bs2_homozygotes():

@@ -48,6 +48,18 @@ def max_credible_af(prevalence: float, allelic_contribution: float, genetic_cont
     raise ValueError(f"inheritance must be dominant or recessive, got {inheritance!r}")
 
 
+def _default_mode(gene: Gene) -> Optional[str]:
+    """Which panel-wide default applies: the more permissive (recessive) one whenever the gene has a
+    recessive mode, so that a gene with both modes is never called too common by its dominant figure;
+    X-linked recessive genes use the recessive figures (conservative: the X-linked allele frequency
+    bound is lower). Mitochondrial genes get none."""
+    if gene.recessive:
+        return "recessive"
+    if gene.dominant:
+        return "dominant"
+    return None
+
+
 def _norm_p(s: str) -> Optional[tuple]:
     pc = protein_change(s)
     return pc if pc else None
@@ -160,6 +172,12 @@ def evaluate_frequency(variant: Variant, ann: Optional[Annotation], gene: Gene, 
         t = max_credible_af(m["prevalence"], m["allelic_contribution"], m["genetic_contribution"],
                             m["penetrance"], inh)
         basis = f"maximum credible AF ({inh}, Whiffin et al. 2017)"
+    elif _default_mode(gene) and rules.default_max_credible(_default_mode(gene)):
+        inh = _default_mode(gene)
+        m = rules.default_max_credible(inh)
+        t = max_credible_af(m["prevalence"], m["allelic_contribution"], m["genetic_contribution"],
+                            m["penetrance"], inh)
+        basis = f"panel-wide default maximum credible AF ({inh}, Whiffin et al. 2017; no gene-specific figures)"
     else:
         t = None
     if t is None:

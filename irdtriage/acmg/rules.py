@@ -19,7 +19,7 @@ from ..errors import InputError
 STRENGTH_NAMES = ("Supporting", "Moderate", "Strong", "VeryStrong")
 
 _TOP = {"name", "version", "frequency", "in_silico", "pvs1", "pm4", "clinical_assertions",
-        "frequency_exceptions", "genes"}
+        "frequency_exceptions", "genes", "default_max_credible"}
 _FREQ = {"ba1_af": (0, 1), "min_an": (0, 10**9), "continental": None, "pm2_strength": None,
          "pm2_max_af_dominant": (0, 1), "pm2_max_af_recessive": (0, 1), "faf_confidence": (0.5, 0.9999),
          "bs2_min_homozygotes": (1, 10**6), "bs2_min_heterozygotes_dominant": (1, 10**6)}
@@ -60,6 +60,10 @@ class Rules:
 
     def exceptions(self, symbol: str) -> list[dict[str, Any]]:
         return [e for e in self.data.get("frequency_exceptions", []) if e.get("gene") == symbol]
+
+    def default_max_credible(self, mode: str) -> Optional[dict]:
+        """Panel-wide fallback parameters for a gene without its own max_credible block."""
+        return (self.data.get("default_max_credible") or {}).get(mode)
 
 
 def default_path() -> Path:
@@ -127,7 +131,17 @@ class _Checker:
 
 
 def _validate(data: Any, c: _Checker) -> None:
-    c.mapping(data, (), _TOP, _TOP - {"frequency_exceptions", "genes"})
+    c.mapping(data, (), _TOP, _TOP - {"frequency_exceptions", "genes", "default_max_credible"})
+    dm = data.get("default_max_credible")
+    if dm is not None:
+        c.mapping(dm, ("default_max_credible",), {"recessive", "dominant", "note"})
+        for mode in ("recessive", "dominant"):
+            if mode in dm:
+                m = dm[mode]
+                w = ("default_max_credible", mode)
+                c.mapping(m, w, _MAXCRED, {"prevalence", "allelic_contribution", "genetic_contribution", "penetrance"})
+                for k in ("prevalence", "allelic_contribution", "genetic_contribution", "penetrance"):
+                    c.number(m[k], w + (k,), 1e-12, 1)
     for k in ("name", "version"):
         if not isinstance(data[k], str) or not data[k].strip():
             c.fail((k,), f"{k} must be a non-empty string")
