@@ -20,6 +20,7 @@ in the documented order (see DEVELOPERS.md, "Data flow"):
 from __future__ import annotations
 
 import datetime as _dt
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Iterable, Optional, Sequence
@@ -263,6 +264,7 @@ SILENT_NONCODING = frozenset({
     "regulatory_region_variant", "TF_binding_site_variant",
 })
 SPLICE_SIGNAL = 0.2  # SpliceAI delta at which splicing evidence starts (Walker et al. 2023)
+NEAR_EXON_NT = 50  # intronic alleles this close to an exon are always reported (common practice)
 
 
 def _not_reported(f: models.Finding, curated: dict) -> Optional[str]:
@@ -275,9 +277,17 @@ def _not_reported(f: models.Finding, curated: dict) -> Optional[str]:
     if terms and terms <= SILENT_NONCODING:
         splice = f.evidence.get("spliceai_max") if isinstance(f.evidence, dict) else None
         asserted = any(c.code in ("PS1", "PP5") and c.met for c in f.criteria)
-        if (splice is None or splice < SPLICE_SIGNAL) and not asserted:
+        offset = intron_offset(f.annotation.hgvs_c)
+        near_exon = offset is not None and offset <= NEAR_EXON_NT
+        if (splice is None or splice < SPLICE_SIGNAL) and not asserted and not near_exon:
             return "noncoding_not_reported"
     return None
+
+
+def intron_offset(hgvs_c: str) -> Optional[int]:
+    """Smallest distance into the intron written in an HGVS c. description (c.1611+27G>A -> 27)."""
+    offsets = [int(m) for m in re.findall(r"\d[+-](\d+)", hgvs_c or "")]
+    return min(offsets) if offsets else None
 
 
 STRONG_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")

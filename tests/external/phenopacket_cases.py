@@ -264,6 +264,11 @@ def consequence_from_hgvs(hgvs_c: str, hgvs_p: str) -> str:
     offsets = [int(o) for _, o in positions if o]
     if len(positions) == 2 and positions[0][1] and positions[1][1] and positions[0][0] != positions[1][0]:
         return "exon_loss_variant"  # a deletion/duplication spanning whole exon(s)
+    if len(positions) == 2 and bool(positions[0][1]) != bool(positions[1][1]):
+        # a range from an exon into the intron (or back) removes the exon-intron boundary itself:
+        # e.g. c.2212_2215+21del takes out the donor site, c.801-25_843del the acceptor site
+        intronic = positions[0] if positions[0][1] else positions[1]
+        return "splice_donor_variant" if intronic[1].startswith("+") else "splice_acceptor_variant"
     if offsets:
         o = min(offsets, key=abs)
         if 1 <= o <= 2:
