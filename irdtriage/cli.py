@@ -77,7 +77,8 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--population-vcf", metavar="FILE", help="population-frequency VCF (bgzipped + tabix)")
     t.add_argument("--clinical-vcf", metavar="FILE", help="clinical-assertion VCF (bgzipped + tabix)")
     t.add_argument("--scores", metavar="FILE", action="append", default=[],
-                   help="tabix-indexed score table (repeatable)")
+                   help="tabix-indexed score table with columns chrom, pos, ref, alt, score; the score is "
+                        "named by the file (revel.tsv.gz) or as NAME=PATH (repeatable)")
     t.add_argument("--min-dp", type=int, default=None, help="minimum read depth (default 8)")
     t.add_argument("--min-gq", type=int, default=None, help="minimum genotype quality (default 20)")
     t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
@@ -179,7 +180,7 @@ def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optiona
         with open(input_phenopacket_path, encoding="utf-8") as fh:
             pp = json.load(fh)
     paths = write_outputs(result, args.out, formats=args.formats, input_phenopacket=pp,
-                          cascade_steps=result.get("cascade"))
+                          cascade_steps=result.get("cascade"), input_phenopacket_path=input_phenopacket_path)
     console = _console()
     render_terminal(result, console, verbose=args.verbose, quiet=args.quiet)
     if not args.quiet:
