@@ -123,6 +123,14 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     layouts = annotation_layouts(intake.header) if getattr(intake, "header", None) is not None else \
         intake.header_info.get("annotation_layouts", {})
     locator = GeneLocator(panel, intake.build, opts.padding)
+    # Without consequence annotation nothing tells a coding allele from a deep-intronic one, so
+    # only alleles in exons (+/- splice padding) of the genes become findings (see DEVELOPERS.md).
+    regions = None
+    outside_regions = 0
+    if not layouts and not opts.all_variants:
+        from .regions import CodingRegions, load_exons
+
+        regions = CodingRegions(load_exons(), panel, intake.build)
     findings: list[models.Finding] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)
@@ -131,6 +139,12 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         genes_here = locator.genes_at(variant.chrom, variant.pos, variant.pos + max(len(variant.ref), 1) - 1)
         if not genes_here:
             continue
+        if regions is not None:
+            end = variant.pos + max(len(variant.ref), 1) - 1
+            genes_here = [g for g in genes_here if regions.contains(g, variant.chrom, variant.pos, end)]
+            if not genes_here:
+                outside_regions += 1
+                continue
         annotation = pick_annotation(variant, layouts, panel, genes_here)
         gene_symbol = annotation.gene if annotation.gene in panel.genes else genes_here[0]
         if annotation.gene != gene_symbol:
@@ -188,7 +202,12 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     # Reporting filter: common alleles (BA1 met) and intronic/flanking alleles with no sign of a
     # splice effect are counted, not reported, unless --all-variants (see DEVELOPERS.md).
-    counts_extra = {"common_not_reported": 0, "noncoding_not_reported": 0}
+    counts_extra = {"common_not_reported": 0, "noncoding_not_reported": 0,
+                    "outside_coding_regions_not_reported": outside_regions}
+    if regions is not None:
+        warnings.append(
+            f"no consequence annotation: only alleles in exons +/- {regions.padding} bp of the panel genes were "
+            f"assessed ({outside_regions} others in the genes counted, not reported); {regions.describe()}")
     if not opts.all_variants:
         kept = []
         for f in findings:
