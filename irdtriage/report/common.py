@@ -1,6 +1,7 @@
 """Small helpers shared by the output writers (pure functions over the result dict)."""
 from __future__ import annotations
 
+import re
 from typing import Any, Iterable, Optional
 
 from irdtriage import CAUTION
@@ -90,12 +91,13 @@ def affected_steps(result: dict, top: int = 3) -> dict[str, list[str]]:
     return out
 
 
+_PROT_POS = re.compile(r"p\.\(?[A-Za-z*]{1,3}(\d+)")
+
+
 def protein_position(finding: dict) -> Optional[int]:
     """First amino-acid position in hgvs_p ('p.(Arg34Ter)', 'p.R34*', 'p.Thr84fs'), else evidence['protein_position']."""
-    import re
-
     p = finding.get("hgvs_p") or ""
-    m = re.search(r"p\.\(?[A-Za-z*]{1,3}(\d+)", p)
+    m = _PROT_POS.search(p)
     if m:
         return int(m.group(1))
     ev = finding.get("evidence") or {}

@@ -1,5 +1,16 @@
 """Self-contained HTML case report (inline CSS and SVG; no script, font, image or link to
-fetch), printable on A4. Every string from the result is escaped with html.escape."""
+fetch), printable on A4. Every string from the result is escaped with html.escape.
+
+Size: a person reads the top of a case, and an unannotated exome gives tens of thousands
+of findings, so only the gene hypotheses that matter are drawn in full (gene section with
+the cascade text, protein sketch and the 28-criterion table of each finding): the first
+``DETAIL_GENES`` genes by rank plus any gene holding a CAUSATIVE or CANDIDATE finding; within
+such a gene at most ``DETAIL_FINDINGS`` findings get a full table (most relevant first), the
+rest a compact row. Every other finding is listed compactly (gene, HGVS / position,
+zygosity, class, met criteria), or, above ``OTHER_ROWS_MAX`` of them, counted per gene and
+class. The report says so where it happens; the full criterion tables of every finding are
+in result.json and ``irdtriage explain``.
+"""
 from __future__ import annotations
 
 import html as _html
@@ -13,9 +24,19 @@ from .common import (
     cautions,
     criterion_label,
     criteria_compact,
+    findings_by_id,
     fmt,
     gene_findings,
 )
+
+DETAIL_GENES = 10
+DETAIL_FINDINGS = 20
+OTHER_ROWS_MAX = 500
+FINDING_IDS_SHOWN = 6
+KEY_STATUSES = ("CAUSATIVE", "CANDIDATE")
+STATUS_ORDER = {"CAUSATIVE": 0, "CANDIDATE": 1, "CONTRIBUTORY": 2, "UNKNOWN_STATUS": 3, "REJECTED": 4}
+CLASS_RANK = {"Pathogenic": 0, "Likely pathogenic": 1, "Uncertain significance": 2, "Likely benign": 3, "Benign": 4}
+ZYG_SHORT = {"heterozygous": "het", "homozygous": "hom", "hemizygous": "hemi"}
 
 CLASS_ORDER = ("Benign", "Likely benign", "Uncertain significance", "Likely pathogenic", "Pathogenic")
 
@@ -56,9 +77,11 @@ h4{font-size:15px;margin:16px 0 6px;color:var(--teal)}
 .sub{color:var(--muted);margin:0 0 10px}
 .caution{border:2px solid var(--ochre);background:var(--ochre-soft);padding:10px 14px;border-radius:8px;margin:12px 0;
 font-weight:600}
-.caution b{letter-spacing:.5px}
+.caution b{letter-spacing:.5px}.caution p{margin:0}
+.caution ul{margin:6px 0 0;font-weight:400;font-size:14px}
 dl.meta{display:grid;grid-template-columns:max-content 1fr max-content 1fr;gap:2px 14px;margin:8px 0;font-size:13.5px}
-dl.meta dt{color:var(--muted)}dl.meta dd{margin:0;word-break:break-all}
+dl.meta dt{color:var(--muted)}dl.meta dd{margin:0}
+dl.run{grid-template-columns:max-content 1fr}dl.run dd{word-break:break-all}
 .call{display:flex;gap:16px;align-items:center;border:1px solid var(--line);border-radius:10px;padding:12px 16px;background:#fff}
 .status{font-weight:800;letter-spacing:1px;padding:6px 12px;border-radius:6px;border:2px solid var(--ink);white-space:nowrap}
 .status.SOLVED{background:var(--ink);color:#fff}
@@ -72,6 +95,7 @@ td.num{text-align:right;font-variant-numeric:tabular-nums}
 .scale span:first-child{border-left:0}
 .scale span.on{background:var(--ink);color:#fff;font-weight:700}
 .cls{font-weight:700;margin-left:6px}
+td .cls{display:block;margin-left:0}
 section.gene{border-left:4px solid var(--teal);padding-left:14px;margin-top:18px}
 .explain{display:grid;grid-template-columns:1fr 1fr;gap:12px}
 .explain div{background:var(--teal-soft);border-radius:8px;padding:8px 12px}
@@ -83,7 +107,7 @@ tr.ne td.state{font-style:italic;color:var(--muted)}
 tr.notmet td{color:var(--muted)}
 .crit{font-family:ui-monospace,"DejaVu Sans Mono",Menlo,monospace;font-size:12.5px}
 figure{margin:8px 0 14px}figcaption{font-size:12.5px;color:var(--muted)}
-.muted{color:var(--muted)}
+.muted{color:var(--muted)}.small{font-size:12px}
 ul{margin:4px 0 8px;padding-left:22px}
 footer{margin-top:28px;font-size:12px;color:var(--muted);border-top:1px solid var(--line);padding-top:8px}
 @page{size:A4;margin:14mm 12mm}
@@ -108,7 +132,11 @@ def _class_scale(cls: Optional[str]) -> str:
 
 
 def _caution_box(result: dict) -> str:
-    return "".join(f'<p class="caution" role="note"><b>CAUTION</b> — {e(c)}</p>' for c in cautions(result))
+    """One box: the clinical caution first, the result's further cautions as a list under it."""
+    cs = cautions(result)
+    more = "".join(f"<li>{e(c)}</li>" for c in cs[1:])
+    return (f'<div class="caution" role="note"><p><b>CAUTION</b> — {e(cs[0])}</p>'
+            + (f"<ul>{more}</ul>" if more else "") + "</div>")
 
 
 def _meta(result: dict) -> str:
@@ -126,16 +154,29 @@ def _meta(result: dict) -> str:
         ("Affected", {True: "yes", False: "no"}.get(s.get("affected"), "unknown")),
         ("Parents", f"mother {fmt(s.get('mother'))}, father {fmt(s.get('father'))}"),
         ("Genome build", result.get("genome_build")),
-        ("Tool", f"{fmt(t.get('name'))} {fmt(t.get('version'))}"),
         ("Panel", f"{fmt(p.get('name'))} {fmt(p.get('version'))} ({fmt(p.get('genes'))} genes)"),
-        ("Panel sha256", p.get("sha256")),
         ("Rule set", f"{fmt(r.get('name'))} {fmt(r.get('version'))}"),
-        ("Rule set sha256", r.get("sha256")),
-        ("Run started", run.get("started")), ("Command", run.get("command")),
+        ("Run started", run.get("started")),
+    ]
+    return ('<dl class="meta">' + "".join(f"<dt>{e(k)}</dt><dd>{e(fmt(v))}</dd>" for k, v in items) + "</dl>"
+            '<p class="muted small">File checksums, input paths and the command line: see '
+            '<a href="#run">Run details</a> at the end.</p>')
+
+
+def _run_details(result: dict) -> str:
+    p = result.get("panel") or {}
+    r = result.get("rules") or {}
+    t = result.get("tool") or {}
+    run = result.get("run") or {}
+    items = [
+        ("Tool", f"{fmt(t.get('name'))} {fmt(t.get('version'))}"),
+        ("Panel sha256", p.get("sha256")), ("Rule set sha256", r.get("sha256")),
+        ("Command", run.get("command")),
     ]
     for inp in run.get("inputs") or []:
         items.append((f"Input ({inp.get('role')})", f"{fmt(inp.get('path'))} sha256:{fmt(inp.get('sha256'))}"))
-    return '<dl class="meta">' + "".join(f"<dt>{e(k)}</dt><dd>{e(fmt(v))}</dd>" for k, v in items) + "</dl>"
+    return ('<section id="run"><h2>Run details</h2><dl class="meta run">'
+            + "".join(f"<dt>{e(k)}</dt><dd>{e(fmt(v))}</dd>" for k, v in items) + "</dl></section>")
 
 
 def _genes_table(result: dict) -> str:
@@ -147,14 +188,104 @@ def _genes_table(result: dict) -> str:
         rows.append(
             f'<tr><td class="num">{e(g.get("rank"))}</td><td><a href="#gene-{e(g.get("symbol"))}"><b>{e(g.get("symbol"))}</b></a></td>'
             f'<td>{e("/".join(g.get("inheritance") or []) or "—")}</td><td>{e(g.get("genotype_fit"))}</td>'
-            f'<td class="num">{e(f"{cal:.2f}" if isinstance(cal, (int, float)) else "n/a")}</td>'
-            f'<td>{_class_scale(g.get("strongest_class"))}</td><td>{e(", ".join(g.get("findings") or []))}</td>'
+            f'<td class="num">{_pheno_cell(pm)}</td>'
+            f'<td>{_class_scale(g.get("strongest_class"))}</td><td>{e(_ids(g.get("findings") or []))}{_quality_note(result, g)}</td>'
             f'<td>{e(st.get("title") or "—")}</td></tr>')
     if not rows:
         return '<p class="muted">No gene hypothesis: no finding in a panel gene passed the filters.</p>'
+    note = ""
+    cals = {round((g.get("phenotype_match") or {}).get("calibrated"), 2) for g in result.get("genes") or []
+            if isinstance((g.get("phenotype_match") or {}).get("calibrated"), (int, float))}
+    if len(rows) > 1 and len(cals) == 1:
+        note = ('<p class="muted small">The phenotype match is the same for every gene listed, so the phenotype '
+                "given does not tell these genes apart; the order comes from the genotype evidence.</p>")
     return ("<table><thead><tr><th>Rank</th><th>Gene</th><th>Inheritance</th><th>Genotype fit</th>"
-            "<th>Phenotype match</th><th>Strongest classification</th><th>Findings</th><th>Cascade step</th></tr></thead><tbody>"
-            + "".join(rows) + "</tbody></table>")
+            "<th>Phenotype match (0–1)</th><th>Strongest classification</th><th>Findings</th><th>Cascade step</th></tr></thead><tbody>"
+            + "".join(rows) + "</tbody></table>" + note)
+
+
+def _pheno_rank(pm: dict) -> str:
+    """'rank 3 of 270 panel genes' when the result gives the gene's rank by phenotype alone."""
+    rank, of = pm.get("rank"), pm.get("genes_ranked")
+    if not isinstance(rank, int):
+        return ""
+    return f"rank {rank} of {of} panel genes" if isinstance(of, int) else f"rank {rank} among the panel genes"
+
+
+def _pheno_cell(pm: dict) -> str:
+    cal = pm.get("calibrated")
+    out = e(f"{cal:.2f}" if isinstance(cal, (int, float)) else "n/a")
+    rk = _pheno_rank(pm)
+    return out + (f'<br><span class="muted small">{e(rk)}</span>' if rk else "")
+
+
+def _quality_note(result: dict, g: dict) -> str:
+    by_id = findings_by_id(result) if len(g.get("findings") or []) else {}
+    bad = [fid for fid in (g.get("findings") or [])[:FINDING_IDS_SHOWN] if (by_id.get(fid) or {}).get("quality_flags")]
+    return f'<br><span class="muted small">failed quality: {e(", ".join(bad))}</span>' if bad else ""
+
+
+def _ids(ids: list) -> str:
+    if len(ids) <= FINDING_IDS_SHOWN:
+        return ", ".join(map(str, ids))
+    return ", ".join(map(str, ids[:FINDING_IDS_SHOWN])) + f" … ({len(ids)} in all)"
+
+
+def _relevance(f: dict) -> tuple:
+    return (STATUS_ORDER.get(f.get("interpretation_status"), 3), CLASS_RANK.get(f.get("classification"), 2))
+
+
+def detailed_genes(result: dict) -> list[dict]:
+    """Genes drawn in full: the first DETAIL_GENES by rank plus any with a CAUSATIVE/CANDIDATE finding."""
+    genes = result.get("genes") or []
+    by_id = findings_by_id(result)
+    out = []
+    for i, g in enumerate(genes):
+        if i < DETAIL_GENES or any((by_id.get(fid) or {}).get("interpretation_status") in KEY_STATUSES
+                                   for fid in g.get("findings") or []):
+            out.append(g)
+    return out
+
+
+def _compact_rows(fs: list[dict], with_gene: bool = True) -> str:
+    rows = []
+    for f in fs:
+        hg = " ".join(x for x in (f.get("hgvs_c"), f.get("hgvs_p")) if x)
+        pos = f"{f.get('chrom')}:{f.get('pos')} {f.get('ref')}>{f.get('alt')}"
+        rows.append(f'<tr><td>{e(f.get("id"))}</td>' + (f'<td>{e(f.get("gene"))}</td>' if with_gene else "")
+                    + f'<td>{e(hg or "—")}<br><span class="muted small">{e(pos)}</span></td>'
+                    f'<td>{e(ZYG_SHORT.get(f.get("zygosity"), fmt(f.get("zygosity"))))}</td>'
+                    f'<td>{e(fmt(f.get("classification"), "not classified"))}</td>'
+                    f'<td class="crit">{e(criteria_compact(f))}</td><td>{e(fmt(f.get("interpretation_status")))}</td></tr>')
+    return ("<table class=\"compact\"><thead><tr><th>Finding</th>" + ("<th>Gene</th>" if with_gene else "")
+            + "<th>HGVS / position</th><th>Zygosity</th><th>Classification</th><th>Met criteria</th>"
+            "<th>Status</th></tr></thead><tbody>" + "".join(rows) + "</tbody></table>")
+
+
+def _other_findings(result: dict, shown: set) -> str:
+    others = [f for f in result.get("findings") or [] if f.get("id") not in shown]
+    if not others:
+        return ""
+    where = ("The full table of all 28 criteria with reasons for every finding is in result.json "
+             "and is printed by <code>irdtriage explain &lt;finding id&gt; --result result.json</code>.")
+    head = (f'<section id="other-findings"><h2>Other findings ({len(others)})</h2>'
+            f'<p class="muted">Findings in genes not drawn in full above. {where}</p>')
+    if len(others) <= OTHER_ROWS_MAX:
+        return head + _compact_rows(others) + "</section>"
+    counts: dict[str, dict[str, int]] = {}
+    for f in others:
+        row = counts.setdefault(str(f.get("gene") or "—"), {})
+        c = f.get("classification") or "not classified"
+        row[c] = row.get(c, 0) + 1
+    cols = [c for c in CLASS_ORDER[::-1] if any(c in r for r in counts.values())]
+    if any("not classified" in r for r in counts.values()):
+        cols.append("not classified")
+    rows = "".join(f'<tr><td>{e(gname)}</td>' + "".join(f'<td class="num">{r.get(c, 0) or ""}</td>' for c in cols)
+                   + f'<td class="num">{sum(r.values())}</td></tr>' for gname, r in counts.items())
+    return (head + f'<p><b>{len(others)} findings are more than {OTHER_ROWS_MAX}, so they are counted per gene and '
+            "classification here instead of listed one per row;</b> findings.tsv and findings.vcf.gz list each of them.</p>"
+            "<table class=\"counts\"><thead><tr><th>Gene</th>" + "".join(f"<th>{e(c)}</th>" for c in cols)
+            + "<th>All</th></tr></thead><tbody>" + rows + "</tbody></table></section>")
 
 
 def _criteria_table(f: dict) -> str:
@@ -215,12 +346,14 @@ def _gene_section(result: dict, g: dict) -> str:
         parts.append(f'<h4>Where it acts: {e(st.get("title") or st.get("id"))}</h4><div class="explain">'
                      f'<div><b>What the gene does</b>{e(st.get("text") or "No explanation in the panel.")}</div>'
                      f'<div class="breaks"><b>What a defect breaks</b>{e(st.get("breaks") or "Not described in the panel.")}</div></div>')
-    for n in g.get("notes") or []:
-        parts.append(f'<p class="muted">Note: {e(n)}</p>')
+    if g.get("notes"):
+        parts.append('<h4>Gene notes (curated)</h4><ul class="notes muted">'
+                     + "".join(f"<li>{e(n)}</li>" for n in g["notes"]) + "</ul>")
     parts.append("<h4>Phenotype match</h4>")
     cal = pm.get("calibrated")
+    rk = _pheno_rank(pm)
     parts.append(f'<p>{e(pm.get("summary") or "")} (calibrated {e(f"{cal:.2f}" if isinstance(cal, (int, float)) else "n/a")}, '
-                 f'raw {e(fmt(pm.get("score")))})</p>')
+                 f'raw {e(fmt(pm.get("score")))}{"; " + e(rk) + " by phenotype alone" if rk else ""})</p>')
     mt = pm.get("matched_terms") or []
     if mt:
         parts.append("<table><thead><tr><th>Patient term</th><th>Gene term</th><th>Information content</th></tr></thead><tbody>"
@@ -233,8 +366,14 @@ def _gene_section(result: dict, g: dict) -> str:
         fig = svg.protein_svg(result, g, fs, fig_id=f"irdt-protein-{g.get('rank')}")
         parts.append(f'<figure>{fig}<figcaption>Figure: {e(sym)} protein sketch with the '
                      "position of each finding (domains only when the panel gives them).</figcaption></figure>")
-    for f in fs:
+    ordered = sorted(fs, key=_relevance)
+    for f in ordered[:DETAIL_FINDINGS]:
         parts.append(_finding(f))
+    rest = ordered[DETAIL_FINDINGS:]
+    if rest:
+        parts.append(f'<h4>{len(rest)} more {e(sym)} finding(s), in short</h4><p class="muted">Most relevant first above; '
+                     "the full criterion tables of these are in result.json and <code>irdtriage explain</code>.</p>"
+                     + _compact_rows(rest, with_gene=False))
     if g.get("next_steps"):
         parts.append("<h4>Next steps for this gene</h4><ul>" + "".join(f"<li>{e(s)}</li>" for s in g["next_steps"]) + "</ul>")
     parts.append("</section>")
@@ -267,9 +406,18 @@ def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) ->
                "the visual cycle and photoreceptor upkeep. Hatched boxes with a thick outline (◆) are served by the top-ranked genes.</figcaption>"
                "</figure></section>")
     out.append('<section id="details"><h2>Gene hypotheses in detail</h2>')
-    for g in result.get("genes") or []:
+    detail = detailed_genes(result)
+    n_genes = len(result.get("genes") or [])
+    if n_genes > len(detail):
+        out.append(f'<p class="muted">The {len(detail)} leading gene hypotheses of {n_genes} are shown in full '
+                   f"(the first {DETAIL_GENES} by rank and any gene with a causative or candidate finding); "
+                   "the findings of the others are listed below.</p>")
+    shown: set = set()
+    for g in detail:
         out.append(_gene_section(result, g))
+        shown.update(g.get("findings") or [])
     out.append("</section>")
+    out.append(_other_findings(result, shown))
     terms = "".join(f"<li>{e(t.get('id'))} {e(t.get('label') or '')}</li>" for t in ph.get("present") or [])
     excl = "".join(f"<li>{e(t.get('id'))} {e(t.get('label') or '')}</li>" for t in ph.get("excluded") or [])
     out.append(f'<section id="phenotype"><h2>Phenotype given</h2><p class="muted">Source: {e(ph.get("source") or "none")}</p>'
@@ -285,6 +433,7 @@ def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) ->
     out.append('<section id="methods"><h2>Methods and limitations</h2><h4>What the classification is based on</h4><ul>'
                + "".join(f"<li>{e(m)}</li>" for m in METHODS) + "</ul><h4>What is not automated or not covered</h4><ul>"
                + "".join(f"<li>{e(m)}</li>" for m in LIMITS) + "</ul></section>")
+    out.append(_run_details(result))
     out.append(f'<section id="cautions"><h2>Cautions</h2>{_caution_box(result)}</section>')
     out.append(f"<footer>irdtriage {e(__version__)} · panel {e((result.get('panel') or {}).get('name'))} "
                f"{e((result.get('panel') or {}).get('version'))} · rule set {e((result.get('rules') or {}).get('name'))} "

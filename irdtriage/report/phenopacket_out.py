@@ -8,8 +8,14 @@ Layout: one Interpretation (id ``irdtriage-<sample>``) whose progressStatus is t
 status and whose ``summary`` carries the clinical caution and the case sentence. Its
 Diagnosis names the top gene's disease when the result gives one (``genes[0].diseases``,
 an ontology term such as an OMIM id); otherwise ``disease`` is left out rather than
-invented, and the genomicInterpretations (every finding not REJECTED, by gene rank) still
-say which variants were considered and how.
+invented, and the genomicInterpretations still say which variants were considered and how.
+
+Which findings become genomicInterpretations (the ones that matter to the case, not the
+thousands an unannotated exome rejects): every finding whose interpretation status is
+CAUSATIVE, CANDIDATE or CONTRIBUTORY, plus every finding classified Pathogenic or Likely
+pathogenic whatever its status; ordered by gene rank, then as the gene lists them. All other
+findings (REJECTED, UNKNOWN_STATUS below Likely pathogenic) are in result.json and
+findings.tsv / findings.vcf.gz only.
 """
 from __future__ import annotations
 
@@ -156,6 +162,16 @@ def _genomic_interpretation(result: dict, f: dict, gene: dict, subject_id: str) 
             "variantInterpretation": vi}
 
 
+KEPT_STATUSES = frozenset({"CAUSATIVE", "CANDIDATE", "CONTRIBUTORY"})
+KEPT_CLASSES = frozenset({"Pathogenic", "Likely pathogenic"})
+
+
+def included(finding: dict) -> bool:
+    """Whether a finding becomes a genomicInterpretation (rule in the module docstring)."""
+    return (finding.get("interpretation_status") in KEPT_STATUSES
+            or finding.get("classification") in KEPT_CLASSES)
+
+
 def _ensure_resources(md: dict) -> None:
     have = {r.get("id") for r in md.get("resources") or []}
     md.setdefault("resources", [])
@@ -199,7 +215,7 @@ def to_phenopacket(result: dict, input_phenopacket: Optional[dict] = None,
     for g in genes:
         for fid in g.get("findings") or []:
             f = by_id.get(fid)
-            if f and f.get("interpretation_status") != "REJECTED":
+            if f and included(f):
                 gis.append(_genomic_interpretation(result, f, g, subject_id))
     case = result.get("case") or {}
     interp = {"id": f"irdtriage-{subject_id}", "progressStatus": PROGRESS.get(case.get("status"), "UNKNOWN_PROGRESS")}

@@ -78,6 +78,9 @@ def _gene_line(g: dict) -> Text:
     t.append(f" · {g.get('genotype_fit', '?')}")
     cal = pm.get("calibrated")
     t.append(f" · pheno {cal:.2f}" if isinstance(cal, (int, float)) else " · pheno n/a")
+    if isinstance(pm.get("rank"), int):  # the gene's rank by phenotype alone, when the result has it
+        of = pm.get("genes_ranked")
+        t.append(f" (#{pm['rank']}" + (f"/{of})" if isinstance(of, int) else ")"))
     return t
 
 
@@ -147,11 +150,19 @@ def _cascade_drawing(result: dict, cascade_steps: Optional[Iterable[dict]], widt
     return lines
 
 
-def _ind(console: Console, text: Text, n: int = 0) -> None:
-    """Print ``text`` wrapped to the console width with a hanging indent of ``n`` columns."""
-    for line in text.wrap(console, max(20, console.width - n)):
+def _ind(console: Console, text: Text, n: int = 0, hang: int = 2) -> None:
+    """Print ``text`` wrapped to the console width, indented ``n`` columns; continuation lines
+    are indented ``hang`` columns more, so a wrapped item stays visibly one item."""
+    for i, line in enumerate(text.wrap(console, max(20, console.width - n - hang))):
         line.rstrip()
-        console.print(Text(" " * n) + line, overflow="fold", no_wrap=True, crop=True)
+        console.print(Text(" " * (n + (hang if i else 0))) + line, overflow="fold", no_wrap=True, crop=True)
+
+
+def render_written(console: Console, paths: Iterable[object]) -> None:
+    """The 'Written:' list, one file per line, folded to the console width."""
+    console.print(Text("Written:"))
+    for p in paths:
+        console.print(Text("  " + str(p)), overflow="fold", no_wrap=False)
 
 
 def render_terminal(
@@ -171,10 +182,9 @@ def render_terminal(
             _ind(console, _gene_line(genes[0]))
         else:
             p(Text("no gene hypothesis"))
-        for c in cautions(result):
-            _ind(console, Text("CAUTION: " + c, style=ST_CAUTION))
+        _ind(console, Text("CAUTION: " + cautions(result)[0], style=ST_CAUTION), hang=0)
         return
-    _ind(console, Text(case.get("summary") or ""))
+    _ind(console, Text(case.get("summary") or ""), hang=0)
     p()
     p(Text("Gene hypotheses (ranked)", style=ST_HEAD))
     _ind(console, Text("class P LP VUS LB B · criteria strength shown if not default: Sup Mod Str VStr", style=ST_DIM))
@@ -195,13 +205,13 @@ def render_terminal(
     p()
     p(Text("Light-response cascade (◆ = step served by a top-ranked gene)", style=ST_HEAD))
     for line in _cascade_drawing(result, cascade_steps, console.width - 2):
-        _ind(console, line, 2)
+        _ind(console, line, 2, hang=0)
     steps = case.get("next_steps") or []
     if steps:
         p()
         p(Text("Next steps", style=ST_HEAD))
         for s in steps:
-            _ind(console, Text("- " + s), 2)
+            _ind(console, Text("- " + s), 2)  # continuation lines under the text, not the dash
     warnings = result.get("warnings") or []
     if warnings:
         p()
@@ -210,4 +220,4 @@ def render_terminal(
             _ind(console, Text("! " + w), 2)
     p()
     for c in cautions(result):
-        _ind(console, Text("CAUTION: " + c, style=ST_CAUTION))
+        _ind(console, Text("CAUTION: " + c, style=ST_CAUTION), hang=0)

@@ -9,10 +9,10 @@ from __future__ import annotations
 import csv
 import io
 from pathlib import Path
-from typing import Union
+from typing import Iterator, Union
 
 from irdtriage import __version__
-from irdtriage.atomic import write_text
+from irdtriage.atomic import atomic_open
 
 from .common import cautions, criterion_label, met_criteria
 
@@ -36,15 +36,18 @@ def _cell(v) -> str:
 
 
 def rows(result: dict) -> list[dict]:
+    return list(iter_rows(result))
+
+
+def iter_rows(result: dict) -> Iterator[dict]:
     gene_of = {}
     for g in result.get("genes") or []:
         for fid in g.get("findings") or []:
             gene_of[fid] = g
-    out = []
     for f in result.get("findings") or []:
         g = gene_of.get(f.get("id")) or {}
         o = f.get("original") or {}
-        out.append({
+        yield {
             "finding_id": f.get("id"), "gene": f.get("gene"), "gene_rank": g.get("rank"),
             "genotype_fit": g.get("genotype_fit"), "chrom": f.get("chrom"), "pos": f.get("pos"),
             "ref": f.get("ref"), "alt": f.get("alt"), "original_pos": o.get("pos"),
@@ -59,11 +62,11 @@ def rows(result: dict) -> list[dict]:
             "not_evaluable": [c.get("code") for c in f.get("criteria") or [] if c.get("met") is None],
             "interpretation_status": f.get("interpretation_status"),
             "cascade_step": (g.get("cascade_step") or {}).get("id"),
-        })
-    return out
+        }
 
 
-def render_tsv(result: dict) -> str:
+def iter_tsv(result: dict, batch: int = 2000) -> Iterator[str]:
+    """The text of findings.tsv in pieces of ``batch`` rows (one row per finding, none dropped)."""
     panel = result.get("panel") or {}
     rules = result.get("rules") or {}
     sample = result.get("sample") or {}
@@ -74,13 +77,23 @@ def render_tsv(result: dict) -> str:
     )
     buf = io.StringIO()
     buf.write(" ".join(comment.split()) + "\n")
-    w = csv.DictWriter(buf, fieldnames=COLUMNS, delimiter="\t", lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
-    w.writeheader()
-    for row in rows(result):
-        w.writerow({k: _cell(v) for k, v in row.items()})
-    return buf.getvalue()
+    w = csv.writer(buf, delimiter="\t", lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
+    w.writerow(COLUMNS)
+    for i, row in enumerate(iter_rows(result), 1):
+        w.writerow([_cell(row[k]) for k in COLUMNS])
+        if i % batch == 0:
+            yield buf.getvalue()
+            buf.seek(0)
+            buf.truncate()
+    yield buf.getvalue()
+
+
+def render_tsv(result: dict) -> str:
+    return "".join(iter_tsv(result))
 
 
 def write_tsv(result: dict, path: Union[str, Path]) -> Path:
-    write_text(path, render_tsv(result))
+    with atomic_open(path) as fh:
+        for chunk in iter_tsv(result):
+            fh.write(chunk)
     return Path(path)

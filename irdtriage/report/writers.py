@@ -1,20 +1,24 @@
 """Write every output of one case from the result dict.
 
-Everything is rendered in memory first; only then are files written, each atomically (temp
-file + rename), so a rendering error leaves no file half-written and none replaced.
+Every file is first written under a temporary name in the output folder; only when all
+chosen formats have been rendered and written are they renamed over their targets (each
+rename atomic), so a rendering error leaves no file half-written and none replaced.
+result.json and findings.tsv are streamed into their temporary files piece by piece (an
+exome can give tens of thousands of findings); the other formats are small strings.
 """
 from __future__ import annotations
 
+import contextlib
 import re
 from pathlib import Path
 from typing import Iterable, Optional, Union
 
-from irdtriage.atomic import write_text
+from irdtriage.atomic import atomic_open
 
 from .html import render_html
-from .json_out import render_result_json
+from .json_out import iter_result_json
 from .phenopacket_out import render_phenopacket
-from .tsv import render_tsv
+from .tsv import iter_tsv
 from .vcf_out import write_vcf
 
 FORMATS = ("json", "html", "tsv", "vcf", "phenopacket")
@@ -49,21 +53,26 @@ def write_outputs(
         result = dict(result)
         result["cascade"] = [dict(s) for s in cascade_steps]
     out_dir = Path(out_dir)
-    texts: dict[str, tuple[Path, str]] = {}
-    if "json" in formats:
-        texts["json"] = (out_dir / FILE_NAMES["json"], render_result_json(result))
-    if "html" in formats:
-        texts["html"] = (out_dir / FILE_NAMES["html"], render_html(result, cascade_steps))
-    if "tsv" in formats:
-        texts["tsv"] = (out_dir / FILE_NAMES["tsv"], render_tsv(result))
-    if "phenopacket" in formats:
-        texts["phenopacket"] = (out_dir / phenopacket_name(result),
-                                render_phenopacket(result, input_phenopacket, input_phenopacket_path))
-    written: dict[str, Path] = {}
     out_dir.mkdir(parents=True, exist_ok=True)
-    if "vcf" in formats:  # built by htslib straight into a temporary file, renamed when complete
-        written["vcf"], _ = write_vcf(result, out_dir / FILE_NAMES["vcf"])
-    for fmt_name, (path, text) in texts.items():
-        write_text(path, text)
-        written[fmt_name] = path
+    pieces: dict[str, tuple[Path, object]] = {}
+    if "json" in formats:
+        pieces["json"] = (out_dir / FILE_NAMES["json"], lambda: iter_result_json(result))
+    if "html" in formats:
+        pieces["html"] = (out_dir / FILE_NAMES["html"], lambda: [render_html(result, cascade_steps)])
+    if "tsv" in formats:
+        pieces["tsv"] = (out_dir / FILE_NAMES["tsv"], lambda: iter_tsv(result))
+    if "phenopacket" in formats:
+        pieces["phenopacket"] = (out_dir / phenopacket_name(result),
+                                 lambda: [render_phenopacket(result, input_phenopacket, input_phenopacket_path)])
+    written: dict[str, Path] = {}
+    # All temporary files stay open in one stack: an error anywhere unwinds every one of them
+    # (temporary removed, target untouched); leaving the block without error renames them all.
+    with contextlib.ExitStack() as stack:
+        for fmt_name, (path, make) in pieces.items():
+            fh = stack.enter_context(atomic_open(path))
+            for chunk in make():
+                fh.write(chunk)
+            written[fmt_name] = path
+        if "vcf" in formats:  # built by htslib straight into a temporary file, renamed when complete
+            written["vcf"], _ = write_vcf(result, out_dir / FILE_NAMES["vcf"])
     return {f: written[f] for f in formats if f in written}
