@@ -58,7 +58,7 @@ LIMITS = [
     "evidence a reviewer supplies; these show as not evaluable unless given.",
     "Only small variants in the panel genes are assessed; copy-number, structural and repeat variants, "
     "deep-intronic and regulatory effects, mosaicism and variants outside the panel are not.",
-    "Population data, in-silico scores and annotation come from the inputs named in the case header; "
+    "Population data, in-silico scores and annotation come from the inputs named under Run details; "
     "their versions limit what this report can know.",
     "Phenotype match depends on the HPO terms supplied; missing or imprecise terms lower it.",
 ]
@@ -96,6 +96,7 @@ td.num{text-align:right;font-variant-numeric:tabular-nums}
 .scale span.on{background:var(--ink);color:#fff;font-weight:700}
 .cls{font-weight:700;margin-left:6px}
 td .cls{display:block;margin-left:0}
+table.counts{width:auto;min-width:60%}table.tally{width:auto;min-width:40%}table.counts th+th{text-align:right}
 section.gene{border-left:4px solid var(--teal);padding-left:14px;margin-top:18px}
 .explain{display:grid;grid-template-columns:1fr 1fr;gap:12px}
 .explain div{background:var(--teal-soft);border-radius:8px;padding:8px 12px}
@@ -181,6 +182,7 @@ def _run_details(result: dict) -> str:
 
 def _genes_table(result: dict) -> str:
     rows = []
+    by_id = findings_by_id(result)
     for g in result.get("genes") or []:
         pm = g.get("phenotype_match") or {}
         cal = pm.get("calibrated")
@@ -189,7 +191,7 @@ def _genes_table(result: dict) -> str:
             f'<tr><td class="num">{e(g.get("rank"))}</td><td><a href="#gene-{e(g.get("symbol"))}"><b>{e(g.get("symbol"))}</b></a></td>'
             f'<td>{e("/".join(g.get("inheritance") or []) or "—")}</td><td>{e(g.get("genotype_fit"))}</td>'
             f'<td class="num">{_pheno_cell(pm)}</td>'
-            f'<td>{_class_scale(g.get("strongest_class"))}</td><td>{e(_ids(g.get("findings") or []))}{_quality_note(result, g)}</td>'
+            f'<td>{_class_scale(g.get("strongest_class"))}</td><td>{e(_ids(g.get("findings") or []))}{_quality_note(by_id, g)}</td>'
             f'<td>{e(st.get("title") or "—")}</td></tr>')
     if not rows:
         return '<p class="muted">No gene hypothesis: no finding in a panel gene passed the filters.</p>'
@@ -219,8 +221,7 @@ def _pheno_cell(pm: dict) -> str:
     return out + (f'<br><span class="muted small">{e(rk)}</span>' if rk else "")
 
 
-def _quality_note(result: dict, g: dict) -> str:
-    by_id = findings_by_id(result) if len(g.get("findings") or []) else {}
+def _quality_note(by_id: dict, g: dict) -> str:
     bad = [fid for fid in (g.get("findings") or [])[:FINDING_IDS_SHOWN] if (by_id.get(fid) or {}).get("quality_flags")]
     return f'<br><span class="muted small">failed quality: {e(", ".join(bad))}</span>' if bad else ""
 
@@ -280,8 +281,10 @@ def _other_findings(result: dict, shown: set) -> str:
     cols = [c for c in CLASS_ORDER[::-1] if any(c in r for r in counts.values())]
     if any("not classified" in r for r in counts.values()):
         cols.append("not classified")
-    rows = "".join(f'<tr><td>{e(gname)}</td>' + "".join(f'<td class="num">{r.get(c, 0) or ""}</td>' for c in cols)
-                   + f'<td class="num">{sum(r.values())}</td></tr>' for gname, r in counts.items())
+    rank = {g.get("symbol"): i for i, g in enumerate(result.get("genes") or [])}
+    order = sorted(counts, key=lambda gname: (rank.get(gname, len(rank)), gname))  # by gene rank
+    rows = "".join(f'<tr><td>{e(gname)}</td>' + "".join(f'<td class="num">{counts[gname].get(c, 0) or ""}</td>' for c in cols)
+                   + f'<td class="num">{sum(counts[gname].values())}</td></tr>' for gname in order)
     return (head + f'<p><b>{len(others)} findings are more than {OTHER_ROWS_MAX}, so they are counted per gene and '
             "classification here instead of listed one per row;</b> findings.tsv and findings.vcf.gz list each of them.</p>"
             "<table class=\"counts\"><thead><tr><th>Gene</th>" + "".join(f"<th>{e(c)}</th>" for c in cols)
@@ -428,7 +431,7 @@ def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) ->
     warnings = result.get("warnings") or []
     counts = result.get("counts") or {}
     out.append('<section id="warnings"><h2>Warnings and counts</h2><ul>' + ("".join(f"<li>{e(w)}</li>" for w in warnings) or "<li>no warnings</li>")
-               + "</ul><table><tbody>" + "".join(f"<tr><th>{e(k.replace('_', ' '))}</th><td class=\"num\">{e(v)}</td></tr>" for k, v in counts.items())
+               + "</ul><table class=\"tally\"><tbody>" + "".join(f"<tr><th>{e(k.replace('_', ' '))}</th><td class=\"num\">{e(v)}</td></tr>" for k, v in counts.items())
                + "</tbody></table></section>")
     out.append('<section id="methods"><h2>Methods and limitations</h2><h4>What the classification is based on</h4><ul>'
                + "".join(f"<li>{e(m)}</li>" for m in METHODS) + "</ul><h4>What is not automated or not covered</h4><ul>"
