@@ -99,8 +99,17 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     # 4. VCF intake -----------------------------------------------------------------
     quality = opts.quality or QualityThresholds()
+    coding_regions: dict[str, Any] = {}
+
+    def exon_intervals(build: str):
+        from .regions import CodingRegions, load_exons
+
+        coding_regions["model"] = CodingRegions(load_exons(), panel, build)
+        return coding_regions["model"].read_intervals(panel)
+
     intake = read_vcf(vcf_path, panel, sample=opts.sample or profile_sample(profile, pedigree, vcf_path),
-                      build=opts.build, padding=opts.padding, quality=quality)
+                      build=opts.build, padding=opts.padding, quality=quality,
+                      unannotated_intervals=None if opts.all_variants else exon_intervals)
     warnings.extend(intake.warnings)
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples, vcf_path)
@@ -125,9 +134,9 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     locator = GeneLocator(panel, intake.build, opts.padding)
     # Without consequence annotation nothing tells a coding allele from a deep-intronic one, so
     # only alleles in exons (+/- splice padding) of the genes become findings (see DEVELOPERS.md).
-    regions = None
+    regions = coding_regions.get("model")  # set when the VCF had no annotation and only exons were read
     outside_regions = 0
-    if not layouts and not opts.all_variants:
+    if regions is None and not layouts and not opts.all_variants:
         from .regions import CodingRegions, load_exons
 
         regions = CodingRegions(load_exons(), panel, intake.build)
@@ -207,7 +216,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     if regions is not None:
         warnings.append(
             f"no consequence annotation: only alleles in exons +/- {regions.padding} bp of the panel genes were "
-            f"assessed ({outside_regions} others in the genes counted, not reported); {regions.describe()}")
+            f"read and assessed (use --all-variants to read whole gene spans); {regions.describe()}")
     if not opts.all_variants:
         kept = []
         for f in findings:
@@ -236,7 +245,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         out = {}
         for symbol, gene_findings in by_gene.items():
             span = panel.genes[symbol].span(intake.build)
-            context = by_chrom.get(span.chrom, []) if span else []
+            context = [v for v in by_chrom.get(span.chrom, []) if span.start <= v.pos <= span.end] if span else []
             out[symbol] = assess_gene(panel.genes[symbol], gene_findings, proband, sex, mother=mother,
                                       father=father, build=intake.build, context=context)
         return out

@@ -257,6 +257,21 @@ class CodingRegions:
         """The gene's merged, padded intervals (empty when the gene is kept whole)."""
         return list(zip(self._starts.get(gene_symbol, ()), self._ends.get(gene_symbol, ())))
 
+    def read_intervals(self, panel: Panel) -> list[tuple[str, int, int, str]]:
+        """(bare chrom, start, end, symbol) to read from a VCF: the padded exon intervals, and the
+        whole span of genes kept whole. Sorted like ``panel.intervals``."""
+        out: list[tuple[str, int, int, str]] = []
+        for sym, gene in panel.genes.items():
+            if sym in self._starts:
+                out.extend((self._chrom[sym], s, e, sym) for s, e in self.intervals(sym))
+            else:
+                span = gene.span(self.build)
+                if span is not None:
+                    out.append((span.chrom, span.start, span.end, sym))
+        order = {c: i for i, c in enumerate(CHROMOSOMES)}
+        out.sort(key=lambda t: (order.get(t[0], len(order)), t[1], t[2], t[3]))
+        return out
+
     def region_bp(self) -> int:
         """Bases covered by the padded intervals of genes with exons (per gene, summed)."""
         return sum(e - s + 1 for sym in self._starts for s, e in self.intervals(sym))

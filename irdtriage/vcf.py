@@ -490,8 +490,14 @@ def read_vcf(
     build: Optional[str] = None,
     padding: int = 50,
     quality: QualityThresholds = QualityThresholds(),
+    unannotated_intervals=None,
 ) -> VcfIntake:
-    """Read the panel's variants from a VCF/BCF (indexed: region fetch; otherwise streamed)."""
+    """Read the panel's variants from a VCF/BCF (indexed: region fetch; otherwise streamed).
+
+    ``unannotated_intervals``: optional callable ``build -> [(bare_chrom, start, end, symbol)]``
+    giving narrower regions to read when the header declares no CSQ/ANN annotation (the
+    pipeline passes the padded exons: without consequences nothing else can be assessed).
+    """
     path = str(path)
     kind = _sniff(path)
     if kind in ("text", "gzip", "bgzf"):
@@ -532,7 +538,12 @@ def read_vcf(
             "genome build not stated in the VCF header (no known contig lengths or ##reference); assumed GRCh38 — pass --build to be sure"
         )
     style = _chrom_style(header)
-    merged = merge_intervals(panel_intervals(panel, use_build, padding))
+    narrowed = False
+    if unannotated_intervals is not None and not ({"CSQ", "ANN"} & set(header.info.keys())):
+        merged = merge_intervals(unannotated_intervals(use_build))
+        narrowed = True
+    else:
+        merged = merge_intervals(panel_intervals(panel, use_build, padding))
 
     counts = {k: 0 for k in COUNT_KEYS}
     conv = _Converter(header, samples, path)
@@ -598,6 +609,7 @@ def read_vcf(
         "build_detected": detected,
         "build_evidence": evidence,
         "access": mode,
+        "regions": "exons (no annotation)" if narrowed else "gene spans",
         "annotation_fields": sorted(layouts),
         "annotation_layouts": layouts,  # {"CSQ"/"ANN": [field names]} for pick_annotation
         "contigs": len(header.contigs),
