@@ -184,7 +184,9 @@ def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optiona
     console = _console()
     render_terminal(result, console, verbose=args.verbose, quiet=args.quiet)
     if not args.quiet:
-        console.print("Written: " + ", ".join(str(p) for p in paths.values()), soft_wrap=True)
+        from .report.terminal import render_written
+
+        render_written(console, paths.values())
     return result
 
 
@@ -303,7 +305,9 @@ def cmd_report(args) -> int:
         with open(args.phenopacket, encoding="utf-8") as fh:
             pp = json.load(fh)
     paths = write_outputs(result, out, formats=formats, input_phenopacket=pp, cascade_steps=result.get("cascade"))
-    print("Written: " + ", ".join(str(p) for p in paths.values()))
+    from .report.terminal import render_written
+
+    render_written(_console(), paths.values())
     return 0
 
 

@@ -283,6 +283,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         proband=proband, sex=sex, sex_source=sex_source, inferred_sex=sex_inf.sex,
         mother=mother, father=father, affected=affected, profile=profile, retinal=retinal,
         findings=findings, ranked=ranked, call=call, warnings=warnings, counts_extra=counts_extra,
+        phenotype_ranks=_phenotype_ranks(matches),
     )
 
 
@@ -333,6 +334,12 @@ def _complete_fits(assessments: dict[str, Any], by_gene: dict[str, list[models.F
         if classes and all(c in ("Pathogenic", "Likely pathogenic") for c in classes):
             out.append(symbol)
     return out
+
+
+def _phenotype_ranks(matches: dict[str, models.PhenotypeMatch]) -> dict[str, int]:
+    """Each panel gene's rank by phenotype match alone (1 = best; ties broken by symbol)."""
+    order = sorted(matches.values(), key=lambda m: (-m.score, m.gene))
+    return {m.gene: i for i, m in enumerate(order, 1)}
 
 
 def profile_sample(profile: models.PhenotypeProfile, pedigree: Any, vcf_path: str) -> Optional[str]:

@@ -168,7 +168,7 @@ def score_hypothesis(h: GeneHypothesis, gene: Optional[Gene]) -> float:
 def _reason(h: GeneHypothesis, gene: Optional[Gene]) -> str:
     fs = fit_findings(h)
     alleles = ", ".join(f"{f.id} {_cls(f)}" for f in fs) or "none"
-    phase = f" ({h.phase})" if h.phase and h.phase not in ("homozygous",) else ""
+    phase = _phase_note(h)
     inh = "/".join(gene.inheritance) if gene is not None else "?"
     m = h.phenotype_match
     if m is None:
@@ -233,8 +233,17 @@ def _mode(h: GeneHypothesis) -> str:
 def _describe(h: GeneHypothesis) -> str:
     fs = fit_findings(h)
     alleles = " + ".join(f"{(f.annotation.hgvs_c or f.variant.key)} ({_cls(f)})" for f in fs)
-    return f"{h.symbol} {h.genotype_fit}" + (f" ({h.phase})" if h.phase and h.phase != "homozygous" else "") + \
-        (f": {alleles}" if alleles else "")
+    return f"{h.symbol} {h.genotype_fit}" + _phase_note(h) + (f": {alleles}" if alleles else "")
+
+
+def _phase_note(h: GeneHypothesis) -> str:
+    """How the phase was established, without repeating what the genotype fit already says."""
+    p = (h.phase or "").strip()
+    if not p or p in ("homozygous", "unknown") or p == h.genotype_fit:
+        return ""
+    if p.startswith("in trans (") and h.genotype_fit == "biallelic in trans":
+        return f" (phase from {p[len('in trans ('):].rstrip(')')})"
+    return f" ({p})"
 
 
 def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[bool]) -> CaseCall:

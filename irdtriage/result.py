@@ -136,7 +136,8 @@ def _protein_position(extra: dict[str, Any]) -> Optional[str]:
 CLASS_ORDER = {c: i for i, c in enumerate(models.CLASSES)}
 
 
-def gene_dict(h: models.GeneHypothesis, panel: models.Panel) -> dict[str, Any]:
+def gene_dict(h: models.GeneHypothesis, panel: models.Panel,
+              phenotype_ranks: Optional[dict[str, int]] = None) -> dict[str, Any]:
     gene = panel.genes[h.symbol]
     step = panel.cascade.get(gene.cascade_step)
     classes = [f.classification.classification for f in h.findings if f.classification]
@@ -160,7 +161,9 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel) -> dict[str, Any]:
         "phenotype_match": None if pm is None else {
             "score": _round(pm.score), "calibrated": _round(pm.calibrated),
             "matched_terms": _jsonable(pm.matched_terms), "conflicting_terms": list(pm.conflicting_terms),
-            "summary": pm.summary},
+            "summary": pm.summary,
+            **({"rank": phenotype_ranks[h.symbol], "genes_ranked": len(phenotype_ranks)}
+               if phenotype_ranks and h.symbol in phenotype_ranks else {})},
         "strongest_class": strongest,
         "score": _round(h.score),
         "reason": h.reason,
@@ -183,7 +186,7 @@ def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
 
 def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,
                  mother, father, affected, profile, retinal, findings, ranked, call, warnings,
-                 counts_extra=None) -> dict[str, Any]:
+                 counts_extra=None, phenotype_ranks=None) -> dict[str, Any]:
     inputs = [{"role": "vcf", "path": str(vcf_path), "sha256": sha256_file(vcf_path)}]
     for role, p in (("ped", opts.ped), ("phenopacket", opts.phenopacket), ("panel", opts.panel_path),
                     ("rules", opts.rules_path), ("curated", opts.curated_path),
@@ -227,7 +230,7 @@ def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex,
         },
         "case": {"status": call.status, "summary": call.summary, "next_steps": list(call.next_steps)},
         "cascade": [cascade_dict(s) for s in panel.cascade.values()],
-        "genes": [gene_dict(h, panel) for h in ranked],
+        "genes": [gene_dict(h, panel, phenotype_ranks) for h in ranked],
         "findings": [finding_dict(f, proband, relatives) for f in ordered_findings],
         "counts": counts,
         "warnings": list(dict.fromkeys(warnings)),
