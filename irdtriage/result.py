@@ -110,7 +110,15 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
     }
 
 
+_PLAIN = (str, int, bool, type(None))
+
+
 def _jsonable(x: Any) -> Any:
+    t = type(x)
+    if t in _PLAIN:
+        return x
+    if t is dict and all(type(v) in _PLAIN and type(k) is str for k, v in x.items()):
+        return dict(x)  # flat and already plain: the common case for criterion evidence
     if isinstance(x, dict):
         return {str(k): _jsonable(v) for k, v in x.items()}
     if isinstance(x, (list, tuple, set)):

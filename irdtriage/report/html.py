@@ -30,6 +30,7 @@ from .common import (
 )
 
 DETAIL_GENES = 10
+DETAIL_GENES_MAX = 25
 DETAIL_FINDINGS = 20
 OTHER_ROWS_MAX = 500
 FINDING_IDS_SHOWN = 6
@@ -237,13 +238,15 @@ def _relevance(f: dict) -> tuple:
 
 
 def detailed_genes(result: dict) -> list[dict]:
-    """Genes drawn in full: the first DETAIL_GENES by rank plus any with a CAUSATIVE/CANDIDATE finding."""
+    """Genes drawn in full: the first DETAIL_GENES by rank, any gene with a CAUSATIVE finding, and genes
+    with a CANDIDATE finding until DETAIL_GENES_MAX sections are drawn (an unannotated genome can
+    hold hundreds of candidate genes; the rest are listed compactly)."""
     genes = result.get("genes") or []
     by_id = findings_by_id(result)
     out = []
     for i, g in enumerate(genes):
-        if i < DETAIL_GENES or any((by_id.get(fid) or {}).get("interpretation_status") in KEY_STATUSES
-                                   for fid in g.get("findings") or []):
+        statuses = {(by_id.get(fid) or {}).get("interpretation_status") for fid in g.get("findings") or []}
+        if i < DETAIL_GENES or "CAUSATIVE" in statuses or ("CANDIDATE" in statuses and len(out) < DETAIL_GENES_MAX):
             out.append(g)
     return out
 
