@@ -74,7 +74,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .acmg import engine as acmg_engine
     from .acmg.combine import combine
     from .acmg.rules import load_rules
-    from .consequence.annotations import annotation_layouts, pick_annotation
+    from .consequence.annotations import pick_annotation
     from .evidence import EvidenceConfig, EvidenceSources, collect_evidence
     from .panel import GeneLocator, load_panel
     from .vcf import QualityThresholds, quality_flags, read_vcf
@@ -107,12 +107,16 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         coding_regions["model"] = CodingRegions(load_exons(), panel, build)
         return coding_regions["model"].read_intervals(panel)
 
-    intake = read_vcf(vcf_path, panel, sample=opts.sample or profile_sample(profile, pedigree, vcf_path),
+    sample = opts.sample or _proband_hint(vcf_path, profile, pedigree)
+    if sample and not opts.sample:
+        warnings.append(f"no --sample given: triaging {sample} (named by the "
+                        f"{'phenopacket subject' if sample == profile.subject_id else 'PED file, the one affected child with parents'})")
+    intake = read_vcf(vcf_path, panel, sample=sample,
                       build=opts.build, padding=opts.padding, quality=quality,
                       unannotated_intervals=None if opts.all_variants else exon_intervals)
     warnings.extend(intake.warnings)
     proband = intake.proband
-    mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples, vcf_path)
+    mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
     if stated_sex is None and ped_sex is not None:
         stated_sex = ped_sex
         sex_source = "ped"
@@ -129,8 +133,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         sex_source = "inferred"
 
     # 5. findings -------------------------------------------------------------------
-    layouts = annotation_layouts(intake.header) if getattr(intake, "header", None) is not None else \
-        intake.header_info.get("annotation_layouts", {})
+    layouts = intake.header_info.get("annotation_layouts", {})
     locator = GeneLocator(panel, intake.build, opts.padding)
     # Without consequence annotation nothing tells a coding allele from a deep-intronic one, so
     # only alleles in exons (+/- splice padding) of the genes become findings (see DEVELOPERS.md).
@@ -342,8 +345,28 @@ def _phenotype_ranks(matches: dict[str, models.PhenotypeMatch]) -> dict[str, int
     return {m.gene: i for i, m in enumerate(order, 1)}
 
 
-def profile_sample(profile: models.PhenotypeProfile, pedigree: Any, vcf_path: str) -> Optional[str]:
-    """No --sample given: nothing to guess from here (read_vcf decides or asks)."""
+def _proband_hint(vcf_path: str, profile: models.PhenotypeProfile, pedigree: Any) -> Optional[str]:
+    """No --sample given for a multi-sample VCF: the phenopacket subject when it is a VCF sample,
+    else the PED's only affected individual whose parents are both in the VCF; None otherwise
+    (read_vcf then asks for --sample, listing the samples)."""
+    try:
+        import pysam
+
+        with pysam.VariantFile(vcf_path) as vf:
+            samples = list(vf.header.samples)
+    except Exception:  # unreadable here: read_vcf reports the problem properly
+        return None
+    if len(samples) < 2:
+        return None
+    if profile.subject_id and profile.subject_id in samples:
+        return profile.subject_id
+    if pedigree is not None:
+        people = getattr(pedigree, "individuals", {}) or {}
+        cands = [pid for pid, p in people.items()
+                 if getattr(p, "affected", None) and pid in samples
+                 and getattr(p, "mother", None) in samples and getattr(p, "father", None) in samples]
+        if len(cands) == 1:
+            return cands[0]
     return None
 
 
@@ -373,7 +396,7 @@ def _phenotype_profile(opts: TriageOptions) -> models.PhenotypeProfile:
                                    subject_id=subject, source=", ".join(source), labels=labels)
 
 
-def _relatives(pedigree: Any, proband: str, samples: Iterable[str], vcf_path: str):
+def _relatives(pedigree: Any, proband: str, samples: Iterable[str]):
     if pedigree is None:
         return None, None, None, None
     from .pedigree import trio_from_ped

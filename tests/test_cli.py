@@ -175,3 +175,14 @@ def test_unindexed_plain_vcf_gives_same_findings_as_indexed(tmp_path: Path, demo
     b = json.loads((demo_out / "result.json").read_text())
     assert [(f["key"], f["classification"]) for f in a["findings"]] == \
         [(f["key"], f["classification"]) for f in b["findings"]]
+
+
+def test_proband_taken_from_ped_when_sample_not_given(tmp_path: Path):
+    # PED format: the only affected individual whose parents are both genotyped is the proband.
+    out = tmp_path / "out"
+    d = demo_inputs()
+    r = run("triage", d["vcf"], "--ped", d["ped"], "--out", str(out), "--formats", "json", "--quiet")
+    assert r.returncode == 0, r.stderr
+    result = json.loads((out / "result.json").read_text())
+    assert result["sample"]["id"] == "ARDEN-P1"
+    assert any("no --sample given" in w for w in result["warnings"])
