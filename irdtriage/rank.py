@@ -257,7 +257,10 @@ def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[
         m = top.phenotype_match
         summary = (f"{_describe(top)} fits the gene's inheritance and the phenotype "
                    f"(match {m.calibrated:.2f}).") if m is not None else f"{_describe(top)} fits inheritance and phenotype."
-        focus = solving[:2] + [h for h in candidates if h.rank <= 3][:2]
+        # once a gene explains the case, a single allele in another recessive gene is a carrier
+        # result (family planning), not a lead to chase with a second-hit search
+        focus = solving[:2] + [h for h in candidates if h.rank <= 3
+                               and h.genotype_fit != "single heterozygous in a recessive gene"][:2]
     elif candidates:
         top = candidates[0]
         status = "IN_PROGRESS"
