@@ -18,10 +18,9 @@ import re
 from pathlib import Path
 from typing import Any
 
-import yaml
-
 from .errors import InputError
 from .models import ALL_CODES, STRENGTHS, CriterionResult
+from .yamlio import parse_yaml
 
 _KEY = re.compile(r"^(?:chr)?([0-9]{1,2}|X|Y|MT|M)-([0-9]+)-([ACGTNacgtn]+)-([ACGTNacgtn]+|\*)$")
 _FIELDS = {"variant", "code", "strength", "reason", "citation", "met"}
@@ -98,12 +97,7 @@ def load_curated(path: str | Path) -> dict[str, list[CriterionResult]]:
                 raise InputError(f"{len(cols)} columns but the header has {len(header)}", p, n)
             rows.append((dict(zip(header, cols)), n))
     else:
-        try:
-            node = yaml.compose(text)
-            data = yaml.safe_load(text)
-        except yaml.YAMLError as e:
-            mark = getattr(e, "problem_mark", None)
-            raise InputError(f"not valid YAML: {getattr(e, 'problem', e)}", p, mark.line + 1 if mark else None) from None
+        node, data = parse_yaml(text, p)
         if isinstance(data, dict) and set(data) == {"evidence"}:
             data, node = data["evidence"], node.value[0][1]
         if data is None:

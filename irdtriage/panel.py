@@ -30,6 +30,7 @@ import yaml
 
 from .errors import InputError
 from .models import CascadeStep, Gene, Panel, Span
+from .yamlio import package_data_path
 
 PathLike = Union[str, Path]
 
@@ -72,15 +73,7 @@ _BUILD_ALIASES = {
 # Default files
 # ---------------------------------------------------------------------------
 def _default_file(name: str) -> Path:
-    try:
-        from importlib.resources import files
-
-        candidate = files("irdtriage.panels") / name
-        if candidate.is_file():
-            return Path(str(candidate))
-    except (ImportError, ModuleNotFoundError, TypeError, FileNotFoundError):
-        pass
-    return Path(__file__).resolve().parents[1] / "panels" / name
+    return package_data_path(name)
 
 
 def default_panel_path() -> Path:

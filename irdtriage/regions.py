@@ -30,6 +30,7 @@ from typing import Any, Optional, Union
 from .errors import InputError
 from .models import Panel
 from .panel import CHROMOSOMES, _bare_chrom, _line, _read_yaml, normalise_build
+from .yamlio import package_data_path
 
 # Splice-region padding into each intron (bp).  20 bp reaches the acceptor region up to -20 and
 # the donor region well beyond +6 (common practice; the ClinGen SVI Splicing Subgroup, Walker et
@@ -71,15 +72,7 @@ class ExonModel:
 
 
 def default_path() -> Path:
-    try:
-        from importlib.resources import files
-
-        p = files("irdtriage.panels").joinpath("exons.yaml")
-        if p.is_file():
-            return Path(str(p))
-    except (ModuleNotFoundError, TypeError, FileNotFoundError):
-        pass
-    return Path(__file__).resolve().parents[1] / "panels" / "exons.yaml"
+    return package_data_path("exons.yaml")
 
 
 def _keys(obj: dict, required, optional, p: Path, what: str) -> None:

@@ -32,6 +32,7 @@ from typing import Any, Optional
 import yaml
 
 from .errors import InputError
+from .yamlio import package_data_path, read_yaml
 
 BUILDS = ("GRCh38", "GRCh37")
 NMD_NT = 50  # Abou Tayoun et al. 2018
@@ -90,15 +91,7 @@ class TranscriptModel:
 
 
 def default_path() -> Path:
-    try:
-        from importlib.resources import files
-
-        p = files("irdtriage.panels").joinpath("transcripts.yaml")
-        if p.is_file():
-            return Path(str(p))
-    except (ModuleNotFoundError, TypeError, FileNotFoundError):
-        pass
-    return Path(__file__).resolve().parents[1] / "panels" / "transcripts.yaml"
+    return package_data_path("transcripts.yaml")
 
 
 def _line(node: Any, path: tuple) -> Optional[int]:
@@ -140,18 +133,7 @@ def _exons(raw: Any, fail, where: tuple) -> tuple[tuple[int, int], ...]:
 def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
     """Load and validate a transcript file; every problem is an InputError naming file and line."""
     p = Path(path) if path else default_path()
-    try:
-        raw = p.read_bytes()
-    except OSError as e:
-        raise InputError(f"cannot read transcript file: {e.strerror or e}", str(p)) from None
-    text = raw.decode("utf-8", errors="replace")
-    try:
-        node = yaml.compose(text)
-        data = yaml.safe_load(text)
-    except yaml.YAMLError as e:
-        mark = getattr(e, "problem_mark", None)
-        raise InputError(f"not valid YAML: {getattr(e, 'problem', e)}", str(p), mark.line + 1 if mark else None) \
-            from None
+    raw, node, data = read_yaml(p, "transcript file")
 
     def fail(where: tuple, problem: str):
         raise InputError(problem, str(p), _line(node, where))

@@ -15,6 +15,7 @@ from typing import Any, Optional
 import yaml
 
 from ..errors import InputError
+from ..yamlio import package_data_path, read_yaml
 
 STRENGTH_NAMES = ("Supporting", "Moderate", "Strong", "VeryStrong")
 
@@ -67,15 +68,7 @@ class Rules:
 
 
 def default_path() -> Path:
-    try:
-        from importlib.resources import files
-
-        p = files("irdtriage.panels").joinpath("criteria.yaml")
-        if p.is_file():
-            return Path(str(p))
-    except (ModuleNotFoundError, TypeError, FileNotFoundError):
-        pass
-    return Path(__file__).resolve().parents[2] / "panels" / "criteria.yaml"
+    return package_data_path("criteria.yaml")
 
 
 def _lines(node, prefix=()) -> dict[tuple, int]:
@@ -228,18 +221,7 @@ def _validate(data: Any, c: _Checker) -> None:
 
 def load_rules(path: Optional[str | Path] = None) -> Rules:
     p = Path(path) if path else default_path()
-    try:
-        raw = p.read_bytes()
-    except OSError as e:
-        raise InputError(f"cannot read criteria rules file: {e.strerror or e}", str(p)) from None
-    text = raw.decode("utf-8", errors="replace")
-    try:
-        node = yaml.compose(text)
-        data = yaml.safe_load(text)
-    except yaml.YAMLError as e:
-        mark = getattr(e, "problem_mark", None)
-        raise InputError(f"not valid YAML: {getattr(e, 'problem', e)}", str(p),
-                         mark.line + 1 if mark else None) from None
+    raw, node, data = read_yaml(p, "criteria rules file")
     if node is None:
         raise InputError("criteria rules file is empty", str(p))
     _validate(data, _Checker(str(p), _lines(node)))

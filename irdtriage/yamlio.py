@@ -1,0 +1,52 @@
+"""Reading the curated YAML files under panels/ with line numbers for error messages.
+
+* :func:`package_data_path` -- a bundled ``panels/`` file (installed package data, else the
+  repository's ``panels/`` folder).
+* :func:`parse_yaml` -- text -> (node, data): the composed YAML node (lines for messages) and the
+  plain data; a syntax error is an ``InputError`` naming file and line.
+* :func:`read_yaml` -- file -> (raw bytes, node, data); an unreadable file is an ``InputError``.
+"""
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import yaml
+
+from .errors import InputError
+
+
+def package_data_path(name: str) -> Path:
+    """The bundled ``panels/<name>`` (installed package data, else the repository's panels/)."""
+    try:
+        from importlib.resources import files
+
+        candidate = files("irdtriage.panels") / name
+        if candidate.is_file():
+            return Path(str(candidate))
+    except (ImportError, TypeError, FileNotFoundError):
+        pass
+    return Path(__file__).resolve().parents[1] / "panels" / name
+
+
+def parse_yaml(text: str, path: str) -> tuple[Any, Any]:
+    """(node, data) of YAML text; ``node`` is None for an empty document."""
+    try:
+        node = yaml.compose(text)
+        data = yaml.safe_load(text)
+    except yaml.YAMLError as e:
+        mark = getattr(e, "problem_mark", None)
+        raise InputError(f"not valid YAML: {getattr(e, 'problem', e)}", path,
+                         mark.line + 1 if mark else None) from None
+    return node, data
+
+
+def read_yaml(path: Path, what: str) -> tuple[bytes, Any, Any]:
+    """(raw bytes, node, data) of a YAML file; ``what`` names the file in the read error
+    ("cannot read <what>: <reason>").  Bytes that are not UTF-8 are replaced, not refused."""
+    try:
+        raw = path.read_bytes()
+    except OSError as e:
+        raise InputError(f"cannot read {what}: {e.strerror or e}", str(path)) from None
+    node, data = parse_yaml(raw.decode("utf-8", errors="replace"), str(path))
+    return raw, node, data
