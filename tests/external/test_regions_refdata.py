@@ -16,13 +16,9 @@ from irdtriage.panel import load_panel
 from irdtriage.regions import CodingRegions, load_exons
 
 ROOT = Path(__file__).resolve().parents[2]
-REF = ROOT.parent / "shared" / "refdata"
-MANE = REF / "mane" / "MANE.GRCh38.v1.5.summary.txt.gz"
-T38 = REF / "gene_spans" / "gencode_canonical_grch38.txt.gz"
-T37 = REF / "gene_spans" / "gencode_canonical_grch37.txt.gz"
-pytestmark = [pytest.mark.external,
-              pytest.mark.skipif(not (MANE.is_file() and T38.is_file() and T37.is_file()),
-                                 reason="../shared/refdata MANE / gene_spans tables not present (outside reference data)")]
+# the table paths come from the gene_tables fixture (tests/external/conftest.py), which skips
+# with the reason when ../shared/refdata is absent
+pytestmark = pytest.mark.external
 
 
 def _rows(path):
@@ -31,21 +27,21 @@ def _rows(path):
         return {f[0]: f for f in (line.rstrip("\n").split("\t") for line in fh if not line.startswith("#"))}
 
 
-def test_committed_file_equals_rebuild(tmp_path):
+def test_committed_file_equals_rebuild(tmp_path, gene_tables):
     spec = importlib.util.spec_from_file_location("curate_exons", ROOT / "scripts" / "curate_exons.py")
     mod = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(mod)
     out = tmp_path / "exons.yaml"
-    assert mod.main(["--grch38", str(T38), "--grch37", str(T37), "--mane", str(MANE),
-                     "--panel", str(ROOT / "panels" / "genes.yaml"), "--out", str(out)]) == 0
+    assert mod.main(["--grch38", str(gene_tables.grch38), "--grch37", str(gene_tables.grch37),
+                     "--mane", str(gene_tables.mane), "--panel", str(ROOT / "panels" / "genes.yaml"), "--out", str(out)]) == 0
     assert out.read_text() == (ROOT / "panels" / "exons.yaml").read_text(), \
         "panels/exons.yaml is stale: re-run scripts/curate_exons.py"
 
 
-def test_every_exon_list_is_the_table_row_plus_one():
+def test_every_exon_list_is_the_table_row_plus_one(gene_tables):
     # spliceai 1.3.1 tables: EXON_START 0-based, EXON_END inclusive -> exons.yaml [start + 1, end]
     model = load_exons()
-    tables = {"GRCh38": _rows(T38), "GRCh37": _rows(T37)}
+    tables = {"GRCh38": _rows(gene_tables.grch38), "GRCh37": _rows(gene_tables.grch37)}
     assert len(model.genes) >= 490
     for (sym, build), g in model.genes.items():
         f = tables[build][g.table_name]
@@ -55,10 +51,10 @@ def test_every_exon_list_is_the_table_row_plus_one():
         assert g.strand == f[2] and g.chrom == f[1].removeprefix("chr"), (sym, build)
 
 
-def test_every_panel_gene_in_grch38_table_or_listed_missing():
+def test_every_panel_gene_in_grch38_table_or_listed_missing(gene_tables):
     panel = load_panel()
     model = load_exons()
-    t38 = _rows(T38)
+    t38 = _rows(gene_tables.grch38)
     missing = sorted(s for (s, b) in model.missing if b == "GRCh38")
     for sym in panel.genes:
         if model.get(sym, "GRCh38") is None:
@@ -70,10 +66,10 @@ def test_every_panel_gene_in_grch38_table_or_listed_missing():
     assert not [k for k in model.missing if k[1] == "GRCh37"]  # every panel gene is in the GRCh37 table
 
 
-def test_mane_ends_flag_matches_mane():
+def test_mane_ends_flag_matches_mane(gene_tables):
     # MANE v1.5 summary: MANE Select 1-based spans; flag true only where both outer ends agree
     mane = {}
-    with gzip.open(MANE, "rt") as fh:
+    with gzip.open(gene_tables.mane, "rt") as fh:
         for line in fh:
             f = line.rstrip("\n").split("\t")
             if len(f) > 13 and f[9] == "MANE Select":
@@ -93,13 +89,13 @@ def test_regions_are_a_small_part_of_the_gene_spans():
         assert 0 < kept < 0.15 * s["panel_span_bp"], (build, s)
 
 
-def test_script_stops_when_table_starts_look_one_based(tmp_path):
+def test_script_stops_when_table_starts_look_one_based(tmp_path, gene_tables):
     # the real GRCh38 table with every start moved +1 (as if 1-based): the MANE offset check must refuse it
     spec = importlib.util.spec_from_file_location("curate_exons", ROOT / "scripts" / "curate_exons.py")
     mod = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(mod)
     shifted = tmp_path / "shifted_grch38.txt"
-    with gzip.open(T38, "rt") as fh, open(shifted, "w") as out:
+    with gzip.open(gene_tables.grch38, "rt") as fh, open(shifted, "w") as out:
         for line in fh:
             f = line.rstrip("\n").split("\t")
             if not line.startswith("#"):
@@ -107,6 +103,6 @@ def test_script_stops_when_table_starts_look_one_based(tmp_path):
                 f[5] = ",".join(str(int(x) + 1) for x in f[5].strip(",").split(",")) + ","
             out.write("\t".join(f) + "\n")
     with pytest.raises(SystemExit) as e:
-        mod.main(["--grch38", str(shifted), "--grch37", str(T37), "--mane", str(MANE),
+        mod.main(["--grch38", str(shifted), "--grch37", str(gene_tables.grch37), "--mane", str(gene_tables.mane),
                   "--panel", str(ROOT / "panels" / "genes.yaml"), "--out", str(tmp_path / "x.yaml")])
     assert "coordinate base check failed" in str(e.value)

@@ -17,13 +17,9 @@ import yaml
 from irdtriage.transcripts import Transcript, load_transcripts, locate_in, nmd_predicted
 
 ROOT = Path(__file__).resolve().parents[2]
-REF = ROOT.parent / "shared" / "refdata"
-MANE = REF / "mane" / "MANE.GRCh38.v1.5.summary.txt.gz"
-T38 = REF / "gene_spans" / "gencode_canonical_grch38.txt.gz"
-T37 = REF / "gene_spans" / "gencode_canonical_grch37.txt.gz"
-pytestmark = [pytest.mark.external,
-              pytest.mark.skipif(not (MANE.is_file() and T38.is_file() and T37.is_file()),
-                                 reason="../shared/refdata MANE / gene_spans tables not present (outside reference data)")]
+# the table paths come from the gene_tables fixture (tests/external/conftest.py), which skips
+# with the reason when ../shared/refdata is absent
+pytestmark = pytest.mark.external
 
 
 def _script():
@@ -34,9 +30,9 @@ def _script():
 
 
 @pytest.fixture(scope="module")
-def tables():
+def tables(gene_tables):
     s = _script()
-    return s, s.read_mane(MANE), s.read_table(T38)
+    return s, s.read_mane(gene_tables.mane), s.read_table(gene_tables.grch38)
 
 
 def _tx(s, t38, symbol):
@@ -83,10 +79,11 @@ def test_rpe65_minus_strand(tables):
     assert intron.in_exon is False and intron.intron_number == 13
 
 
-def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables):
+def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_tables):
     s, mane, _ = tables
     out = tmp_path / "transcripts.yaml"
-    assert s.main(["--mane", str(MANE), "--grch38", str(T38), "--grch37", str(T37),
+    assert s.main(["--mane", str(gene_tables.mane), "--grch38", str(gene_tables.grch38),
+                   "--grch37", str(gene_tables.grch37),
                    "--panel", str(ROOT / "panels" / "genes.yaml"), "--out", str(out)]) == 0
     fresh, packaged = yaml.safe_load(out.read_text()), yaml.safe_load((ROOT / "panels" / "transcripts.yaml").read_text())
     assert fresh["transcripts"] == packaged["transcripts"] and fresh["skipped"] == packaged["skipped"]
