@@ -203,10 +203,15 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         return [matcher.pp4(m, panel.genes[f.gene])] if m is not None else []
 
     # 8. ACMG pass 1 ----------------------------------------------------------------
+    automated: dict[int, dict[str, models.CriterionResult]] = {}  # pass-1 automated criteria, reused in pass 2
+
     def classify(f: models.Finding, extra: list[models.CriterionResult]) -> None:
         gene = panel.genes[f.gene]
+        base = automated.get(id(f))
+        if base is None:
+            base = automated[id(f)] = acmg_engine.automated(f, gene, rules)
         f.criteria = acmg_engine.evaluate(f, gene, rules, extra=extra,
-                                          curated=curated.get(f.variant.key, []))
+                                          curated=curated.get(f.variant.key, []), base=base)
         f.classification = combine(f.criteria)
 
     for f in findings:

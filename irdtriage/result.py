@@ -103,7 +103,7 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
         "posterior": _round(c.posterior, 6) if c else None,
         "bayes_class": c.bayes_class if c else None,
         "classification_note": c.note if c else "",
-        "criteria": [_jsonable(cr.to_dict()) for cr in f.criteria],
+        "criteria": _criteria_list(f),
         "met_criteria": [f"{cr.code}" + ("" if not cr.strength else f"_{cr.strength}")
                          for cr in f.criteria if cr.met],
         "interpretation_status": f.interpretation_status,
@@ -113,25 +113,43 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
 _PLAIN = (str, int, bool, type(None))
 
 
-def _jsonable(x: Any) -> Any:
+def _jsonable(x: Any, memo: Optional[dict[int, Any]] = None) -> Any:
+    """Plain JSON types only (NaN/inf -> None, tuples/sets -> lists, dataclasses -> dicts).
+
+    ``memo`` converts a container shared by several criteria (the population record, say)
+    once; the result is only read afterwards, so sharing the converted object is safe."""
     t = type(x)
     if t in _PLAIN:
         return x
-    if t is dict and all(type(v) in _PLAIN and type(k) is str for k, v in x.items()):
-        return dict(x)  # flat and already plain: the common case for criterion evidence
-    if isinstance(x, dict):
-        return {str(k): _jsonable(v) for k, v in x.items()}
-    if isinstance(x, (list, tuple, set)):
-        return [_jsonable(v) for v in x]
-    if isinstance(x, float):
+    if t is float:
         return x if x == x and x not in (float("inf"), float("-inf")) else None
-    if isinstance(x, (str, int, bool)) or x is None:
-        return x
-    if hasattr(x, "__dataclass_fields__"):
+    if memo is None:
+        memo = {}
+    key = id(x)
+    if key in memo:
+        return memo[key]
+    if isinstance(x, dict):
+        out: Any = {k if type(k) is str else str(k): _jsonable(v, memo) for k, v in x.items()}
+    elif isinstance(x, (list, tuple, set)):
+        out = [_jsonable(v, memo) for v in x]
+    elif isinstance(x, float):
+        out = x if x == x and x not in (float("inf"), float("-inf")) else None
+    elif isinstance(x, (str, int, bool)):
+        out = x
+    elif hasattr(x, "__dataclass_fields__"):
         from dataclasses import asdict
 
-        return _jsonable(asdict(x))
-    return str(x)
+        out = _jsonable(asdict(x), memo)
+    else:
+        out = str(x)
+    memo[key] = out
+    return out
+
+
+def _criteria_list(f: models.Finding) -> list[dict[str, Any]]:
+    memo: dict[int, Any] = {}
+    return [{"code": cr.code, "met": cr.met, "strength": cr.strength, "reason": cr.reason,
+             "evidence": _jsonable(cr.evidence, memo), "source": cr.source} for cr in f.criteria]
 
 
 def _protein_position(extra: dict[str, Any]) -> Optional[str]:

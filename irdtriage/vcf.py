@@ -104,8 +104,9 @@ def panel_intervals(panel: Panel, build: str, padding: int = 50) -> list[tuple[s
     return out
 
 
-def merge_intervals(intervals: Iterable[tuple]) -> dict[str, list[tuple[int, int]]]:
-    """bare chrom -> sorted, non-overlapping (start, end) list."""
+def merge_intervals(intervals: Iterable[tuple], gap: int = 0) -> dict[str, list[tuple[int, int]]]:
+    """bare chrom -> sorted, non-overlapping (start, end) list; intervals closer than ``gap`` bp
+    are joined (fewer index queries for many small intervals such as exons)."""
     by_chrom: dict[str, list[tuple[int, int]]] = {}
     for chrom, start, end, *_ in intervals:
         by_chrom.setdefault(bare(chrom), []).append((int(start), int(end)))
@@ -114,7 +115,7 @@ def merge_intervals(intervals: Iterable[tuple]) -> dict[str, list[tuple[int, int
         spans.sort()
         out: list[list[int]] = []
         for s, e in spans:
-            if out and s <= out[-1][1] + 1:
+            if out and s <= out[-1][1] + 1 + gap:
                 out[-1][1] = max(out[-1][1], e)
             else:
                 out.append([s, e])
@@ -540,7 +541,9 @@ def read_vcf(
     style = _chrom_style(header)
     narrowed = False
     if unannotated_intervals is not None and not ({"CSQ", "ANN"} & set(header.info.keys())):
-        merged = merge_intervals(unannotated_intervals(use_build))
+        # exons are many and small: join those < 1 kb apart so the index is queried a few
+        # hundred times, not thousands; the pipeline drops the intronic records this adds
+        merged = merge_intervals(unannotated_intervals(use_build), gap=1000)
         narrowed = True
     else:
         merged = merge_intervals(panel_intervals(panel, use_build, padding))

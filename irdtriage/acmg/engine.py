@@ -12,7 +12,7 @@ Strong (Pejaver et al. 2022).
 """
 from __future__ import annotations
 
-from typing import Iterable
+from typing import Iterable, Optional
 
 from ..models import ALL_CODES, CriterionResult, Finding, Gene
 from .assertions import evaluate_assertions
@@ -89,8 +89,12 @@ def _cap_pp3_pm1(res: dict[str, CriterionResult], cap: int) -> None:
 
 
 def evaluate(finding: Finding, gene: Gene, rules: Rules, extra: Iterable[CriterionResult] = (),
-             curated: Iterable[CriterionResult] = ()) -> list[CriterionResult]:
-    res = automated(finding, gene, rules)
+             curated: Iterable[CriterionResult] = (),
+             base: Optional[dict[str, CriterionResult]] = None) -> list[CriterionResult]:
+    """All 28 criteria for one finding. ``base``: the result of :func:`automated` for this
+    finding when the caller already has it (the pipeline's second pass adds only family and
+    phenotype criteria); it is copied, never changed."""
+    res = dict(base) if base is not None else automated(finding, gene, rules)
     for r in extra:
         if r.code not in res:
             raise ValueError(f"unknown criterion code {r.code!r} from another module")
