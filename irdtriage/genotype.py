@@ -64,7 +64,7 @@ PAR = {
 STRONG_CLASSES = ("Pathogenic", "Likely pathogenic")
 CANDIDATE_CLASSES = ("Uncertain significance",)
 BENIGN_CLASSES = ("Benign", "Likely benign")
-# Sequence Ontology terms of predicted null (loss-of-function) alleles (SO names as VEP writes them).
+# Sequence Ontology terms of predicted null (loss-of-function) alleles (SO names as annotators write them).
 NULL_CONSEQUENCES = frozenset({
     "stop_gained", "frameshift_variant", "splice_donor_variant", "splice_acceptor_variant", "start_lost",
     "exon_loss_variant", "transcript_ablation",

@@ -126,7 +126,7 @@ def main() -> None:
         '##INFO=<ID=AN,Number=1,Type=Integer,Description="Total number of alleles in called genotypes">',
         '##INFO=<ID=DP,Number=1,Type=Integer,Description="Combined depth across samples">',
         '##INFO=<ID=MQ,Number=1,Type=Float,Description="RMS mapping quality">',
-        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations from Ensembl VEP. Format: {CSQ_FIELDS}">',
+        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations (invented for the demo). Format: {CSQ_FIELDS}">',
         '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">',
         '##FORMAT=<ID=AD,Number=R,Type=Integer,Description="Allelic depths for the ref and alt alleles">',
         '##FORMAT=<ID=DP,Number=1,Type=Integer,Description="Read depth">',

@@ -178,7 +178,7 @@ def test_info_keys_and_annotation_columns():
     assert ev["clinical"] is None and ev["scores"] == {}
 
 
-def test_vep_spliceai_columns_and_nothing():
+def test_annotation_spliceai_columns_and_nothing():
     a = Annotation("RHO", extra={"SpliceAI_pred_DS_AG": "0.05", "SpliceAI_pred_DS_AL": "0.00",
                                  "SpliceAI_pred_DS_DG": "0.12", "SpliceAI_pred_DS_DL": "0.01"})
     ev = collect_evidence(Variant("1", 5, "A", "G"), a)

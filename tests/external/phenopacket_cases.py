@@ -5,7 +5,7 @@ Source: GA4GH phenopacket-store (Monarch Initiative, BSD-3-Clause), read from
 becomes
 
 * a GRCh38 VCF holding the case's ``vcfRecord``s, genotype from ``allelicState``
-  (heterozygous 0/1, homozygous 1/1, hemizygous haploid 1 on chrX of a male), a VEP-style
+  (heterozygous 0/1, homozygous 1/1, hemizygous haploid 1 on chrX of a male), a CSQ-style
   ``CSQ`` annotation built from the case's HGVS expressions, plus heterozygous *decoy*
   carrier variants taken from cases of other, recessive-only genes;
 * the phenopacket JSON with ``interpretations`` removed (that block is the answer).
@@ -286,7 +286,7 @@ def consequence_from_hgvs(hgvs_c: str, hgvs_p: str) -> str:
 
 
 def _enc(v: str) -> str:
-    """Escape characters not allowed inside a VCF INFO value (percent encoding, as VEP does)."""
+    """Escape characters not allowed inside a VCF INFO value (percent encoding, as annotators do)."""
     return v.replace("%", "%25").replace(";", "%3B").replace("=", "%3D").replace(",", "%2C").replace(" ", "%20")
 
 
@@ -324,7 +324,7 @@ def csq_for(v: CaseVariant) -> str:
         cds = cm.group(1) + (f"-{cm.group(2)}" if cm.group(2) else "")
     alt = v.alt
     if len(v.ref) != len(v.alt) and v.ref[:1] == v.alt[:1]:
-        alt = v.alt[1:] or "-"  # VEP's allele string for indels with a shared padding base
+        alt = v.alt[1:] or "-"  # the CSQ allele string for indels with a shared padding base
     fields = [
         alt, cons, IMPACT.get(cons, "MODIFIER"), v.gene, mane.get("Ensembl_Gene", ""), "Transcript", tx,
         "protein_coding", "", "", v.hgvs_c, v.hgvs_p, "", cds, prot_pos, aa, "", "", "", strand, "",
@@ -341,7 +341,7 @@ def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant
         "##reference=GRCh38",
         *(f"##contig=<ID={c},length={n},assembly=GRCh38>" for c, n in GRCH38_LENGTHS.items()),
         '##FILTER=<ID=PASS,Description="All filters passed">',
-        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations from Ensembl VEP. Format: {CSQ_FIELDS}">',
+        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations from the published HGVS expressions. Format: {CSQ_FIELDS}">',
         '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">',
         '##FORMAT=<ID=AD,Number=R,Type=Integer,Description="Allelic depths for the ref and alt alleles">',
         '##FORMAT=<ID=DP,Number=1,Type=Integer,Description="Read depth">',
