@@ -19,15 +19,19 @@ from .errors import InputError
 FORMATS = ("json", "html", "tsv", "vcf", "phenopacket")
 
 
-def _formats(text: str) -> list[str]:
+def _format_list(text: str) -> list[str]:
     items = [t.strip().lower() for t in text.split(",") if t.strip()]
     bad = [t for t in items if t not in FORMATS]
     if bad or not items:
         raise argparse.ArgumentTypeError(
             f"unknown format(s) {', '.join(bad) or '(none)'}; choose from {', '.join(FORMATS)}")
-    if "json" not in items:
-        items.insert(0, "json")  # result.json is always written: every other output derives from it
-    return items
+    return list(dict.fromkeys(items))
+
+
+def _formats(text: str) -> list[str]:
+    """--formats of triage/demo: result.json is always written, every other output derives from it."""
+    items = _format_list(text)
+    return items if "json" in items else ["json"] + items
 
 
 def _gene_list(text: str) -> list[str]:
@@ -105,7 +109,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     r = sub.add_parser("report", help="re-render outputs from a saved result.json")
     r.add_argument("result", help="result.json written by triage")
-    r.add_argument("--format", dest="formats", type=_formats, default=None, metavar="LIST",
+    r.add_argument("--format", dest="formats", type=_format_list, default=None, metavar="LIST",
                    help=f"formats to write from {','.join(FORMATS)} (default: all)")
     r.add_argument("--out", metavar="DIR", help="output folder (default: beside the result)")
     r.add_argument("--phenopacket", metavar="FILE", help="input phenopacket to extend with interpretations")
