@@ -118,6 +118,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Optional[Sequence[str]] = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
+    _quiet_htslib()
     parser = build_parser()
     args = parser.parse_args(argv)
     if not args.command:
@@ -149,6 +150,16 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
               file=sys.stderr)
         return 1
     return 0
+
+
+def _quiet_htslib() -> None:
+    """htslib writes its own messages to stderr; problems reach the user as one InputError line."""
+    try:
+        import pysam
+
+        pysam.set_verbosity(0)
+    except Exception:  # pragma: no cover - pysam missing is reported when it is first used
+        pass
 
 
 # ---------------------------------------------------------------------------------------
@@ -203,7 +214,11 @@ def cmd_triage(args, argv) -> int:
         score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv),
     )
-    for label, path in (("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped)):
+    inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
+              ("rules", args.rules), ("curated evidence", args.curated),
+              ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf)]
+    inputs += [("score table", p.split("=", 1)[-1]) for p in args.scores]
+    for label, path in inputs:
         if path and not os.path.exists(path):
             raise InputError(f"{label} file not found", path)
     _run_and_write(args.vcf, kwargs, args, args.phenopacket)

@@ -186,3 +186,11 @@ def test_proband_taken_from_ped_when_sample_not_given(tmp_path: Path):
     result = json.loads((out / "result.json").read_text())
     assert result["sample"]["id"] == "ARDEN-P1"
     assert any("no --sample given" in w for w in result["warnings"])
+
+
+def test_evidence_file_that_is_not_a_vcf(tmp_path: Path):
+    bad = tmp_path / "freq.vcf.gz"
+    bad.write_bytes(b"not a variant file")
+    out = tmp_path / "out"
+    r = run("triage", demo_inputs()["vcf"], "--sample", "ARDEN-P1", "--population-vcf", str(bad), "--out", str(out))
+    _assert_clean_failure(r, out, "freq.vcf.gz")
