@@ -194,3 +194,34 @@ def test_evidence_file_that_is_not_a_vcf(tmp_path: Path):
     out = tmp_path / "out"
     r = run("triage", demo_inputs()["vcf"], "--sample", "ARDEN-P1", "--population-vcf", str(bad), "--out", str(out))
     _assert_clean_failure(r, out, "freq.vcf.gz")
+
+
+def test_population_vcf_drives_ba1_end_to_end(tmp_path: Path):
+    # BA1: allele frequency > 5 % in a continental population with enough alleles
+    # (Richards et al. 2015; Ghosh et al., Hum Mutat 2018). The population file is written
+    # here in the gnomAD-style INFO layout (AC_<pop>/AN_<pop>) the reader documents.
+    plain = tmp_path / "pop.vcf"
+    plain.write_text(
+        "##fileformat=VCFv4.2\n##contig=<ID=chr1,length=248956422>\n"
+        '##INFO=<ID=AC_nfe,Number=A,Type=Integer,Description="Allele count, nfe">\n'
+        '##INFO=<ID=AN_nfe,Number=1,Type=Integer,Description="Allele number, nfe">\n'
+        '##INFO=<ID=nhomalt_nfe,Number=A,Type=Integer,Description="Homozygotes, nfe">\n'
+        "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\n"
+        "chr1\t94008260\t.\tG\tA\t.\tPASS\tAC_nfe=6000;AN_nfe=60000;nhomalt_nfe=180\n")
+    pysam.tabix_index(str(plain), preset="vcf", force=True)
+    out = tmp_path / "out"
+    d = demo_inputs()
+    r = run("triage", d["vcf"], "--sample", "ARDEN-P1", "--population-vcf", str(plain) + ".gz",
+            "--out", str(out), "--formats", "json", "--all-variants", "--quiet")
+    assert r.returncode == 0, r.stderr
+    result = json.loads((out / "result.json").read_text())
+    f = next(f for f in result["findings"] if f["key"] == "1-94008260-G-A")
+    ba1 = next(c for c in f["criteria"] if c["code"] == "BA1")
+    assert ba1["met"] is True and f["classification"] == "Benign"
+    # without --all-variants the same allele is counted as common, not reported
+    out2 = tmp_path / "out2"
+    r = run("triage", d["vcf"], "--sample", "ARDEN-P1", "--population-vcf", str(plain) + ".gz",
+            "--out", str(out2), "--formats", "json", "--quiet")
+    result = json.loads((out2 / "result.json").read_text())
+    assert "1-94008260-G-A" not in {f["key"] for f in result["findings"]}
+    assert result["counts"]["common_not_reported"] >= 1
