@@ -9,7 +9,6 @@ import argparse
 import os
 import shlex
 import sys
-import tempfile
 from pathlib import Path
 from typing import Optional, Sequence
 

@@ -14,13 +14,13 @@ offers one (with a warning) and rejecting unknown or malformed IDs with an
 """
 from __future__ import annotations
 
-import json
 import re
 import warnings
 from pathlib import Path
 from typing import Iterable, Optional, Union
 
 from irdtriage.errors import InputError
+from irdtriage.jsonio import read_json_object
 from irdtriage.models import PhenotypeProfile
 
 HPO_ID = re.compile(r"^HP:\d{7}$")
@@ -74,18 +74,7 @@ def read_phenopacket(path: Union[str, Path], *, validate_terms: bool = True) -> 
     """
     p = Path(path)
     spath = str(p)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise InputError("phenopacket file not found", spath) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"cannot read phenopacket: {exc}", spath) from None
-    try:
-        data = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise InputError(f"not valid JSON: {exc.msg} (column {exc.colno})", spath, exc.lineno) from None
-    if not isinstance(data, dict):
-        raise InputError("a phenopacket must be a JSON object", spath, 1)
+    text, data = read_json_object(p, "phenopacket")
     _schema_check(text, data, spath)
 
     present: list[str] = []

@@ -7,7 +7,6 @@ Sources named beside each check:
   at prior 0.10 for each Table 5 rule).
 * Tavtigian et al., Hum Mutat 2020;41:1734-1737, Table 3 (point bands).
 """
-import math
 
 import pytest
 

@@ -51,7 +51,6 @@ def evaluate_insilico(ann: Optional[Annotation], rules: Rules, ev: dict) -> list
                 result("BP7", False, None, "not a synonymous or intronic variant", **evidence)]
     sai_txt = f"SpliceAI max delta {sai:.2f}" if sai is not None else "SpliceAI not available"
     pp3 = bp4 = None
-    pp3_reason = bp4_reason = ""
     if t & MISSENSE:
         if value is None and sai is None:
             msg = "no calibrated missense score (REVEL) or SpliceAI value available"

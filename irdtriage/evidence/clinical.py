@@ -16,10 +16,10 @@ from __future__ import annotations
 from typing import Any
 from urllib.parse import unquote
 
-import pysam
 
 from ..errors import InputError
 from .alleles import contig_for, trim
+from .indexed import open_indexed_vcf
 
 
 def _scalar(rec, key: str):
@@ -35,13 +35,7 @@ class ClinicalSource:
     def __init__(self, path: str, config):
         self.path = path
         self.config = config
-        try:
-            self.vf = pysam.VariantFile(path)
-        except (OSError, ValueError) as e:
-            raise InputError(f"cannot open clinical-assertion VCF: {e}", path) from None
-        if not self.vf.index:
-            self.vf.close()
-            raise InputError("clinical-assertion VCF needs a tabix (.tbi) or CSI index", path)
+        self.vf = open_indexed_vcf(path, "clinical-assertion VCF")
         if "CLNSIG" not in self.vf.header.info:
             self.vf.close()
             raise InputError("clinical-assertion VCF has no CLNSIG INFO field in its header", path)

@@ -9,11 +9,11 @@ from __future__ import annotations
 import re
 from typing import Any, Optional
 
-import pysam
 
-from ..errors import InputError
+
 from .alleles import contig_for, trim
 from .faf import filtering_af
+from .indexed import open_indexed_vcf
 from .values import first_int, max_number
 
 _POP = re.compile(r"^AC_([A-Za-z]+)$")
@@ -33,15 +33,7 @@ class PopulationSource:
     def __init__(self, path: str, config):
         self.path = path
         self.config = config
-        try:
-            self.vf = pysam.VariantFile(path)
-        except (OSError, ValueError) as e:
-            raise InputError(f"cannot open population-frequency VCF: {e}", path) from None
-        if not self.vf.index:
-            try:
-                self.vf.close()
-            finally:
-                raise InputError("population-frequency VCF needs a tabix (.tbi) or CSI index", path)
+        self.vf = open_indexed_vcf(path, "population-frequency VCF")
         info = set(self.vf.header.info.keys())
         self.populations = sorted(
             m.group(1) for k in info if (m := _POP.match(k)) and m.group(1) not in _SKIP and f"AN_{m.group(1)}" in info)

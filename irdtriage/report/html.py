@@ -22,7 +22,6 @@ from . import svg
 from .common import (
     CLASS_SHORT,
     cautions,
-    criterion_label,
     criteria_compact,
     findings_by_id,
     fmt,
@@ -145,7 +144,6 @@ def _meta(result: dict) -> str:
     s = result.get("sample") or {}
     p = result.get("panel") or {}
     r = result.get("rules") or {}
-    t = result.get("tool") or {}
     run = result.get("run") or {}
     sex = fmt(s.get("sex"))
     if s.get("sex_source"):
@@ -186,7 +184,6 @@ def _genes_table(result: dict) -> str:
     by_id = findings_by_id(result)
     for g in result.get("genes") or []:
         pm = g.get("phenotype_match") or {}
-        cal = pm.get("calibrated")
         st = g.get("cascade_step") or {}
         rows.append(
             f'<tr><td class="num">{e(g.get("rank"))}</td><td><a href="#gene-{e(g.get("symbol"))}"><b>{e(g.get("symbol"))}</b></a></td>'

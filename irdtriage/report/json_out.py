@@ -16,6 +16,7 @@ from typing import Iterator, Union
 
 from irdtriage.atomic import atomic_open
 from irdtriage.errors import InputError
+from irdtriage.jsonio import read_json_object
 
 SCHEMA_PATH = Path(__file__).resolve().parent.parent / "schema" / "result.schema.json"
 
@@ -92,18 +93,7 @@ def write_result_json(result: dict, path: Union[str, Path]) -> Path:
 def load_result(path: Union[str, Path]) -> dict:
     """Read a result.json; raise InputError naming the file (and line / JSON path) when it is not one."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise InputError("file not found", path) from None
-    except (OSError, UnicodeDecodeError) as e:
-        raise InputError(f"cannot read result file: {e}", path) from None
-    try:
-        data = json.loads(text)
-    except json.JSONDecodeError as e:
-        raise InputError(f"not valid JSON: {e.msg} (column {e.colno})", path, e.lineno) from None
-    if not isinstance(data, dict):
-        raise InputError("not an irdtriage result: the top level is not a JSON object", path, 1)
+    _text, data = read_json_object(path, "irdtriage result")
     errors = validation_errors(data)
     if errors:
         more = f" (and {len(errors) - 1} more problem(s))" if len(errors) > 1 else ""

@@ -20,7 +20,7 @@ from typing import Iterable, Optional, Union
 
 import pysam
 
-from irdtriage import CAUTION, __version__
+from irdtriage import __version__
 from irdtriage.atomic import atomic_path
 from irdtriage.errors import InputError
 

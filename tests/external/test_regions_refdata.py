@@ -10,7 +10,6 @@ import importlib.util
 from pathlib import Path
 
 import pytest
-import yaml
 
 from irdtriage.panel import load_panel
 from irdtriage.regions import CodingRegions, load_exons
