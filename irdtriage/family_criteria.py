@@ -185,10 +185,17 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
     # of them (an unannotated genome), they are not phased one by one (reported in the reason).
     partners = list(others)  # the caller passes only rare partners of a scoring class (eligible)
     vus = [g for g in partners if _class(g) == "Uncertain significance"]
-    skipped_vus = 0
-    if len(vus) > PM3_MAX_UNCERTAIN_PARTNERS:
-        skipped_vus = len(vus)
+    extra_note = ""
+    if vus and mother is None and father is None and not c.phased:
+        # without parents or a phased genotype no pair can be shown in trans, and an uncertain
+        # partner scores only in trans (SVI PM3 table): nothing to phase
         partners = [g for g in partners if _class(g) != "Uncertain significance"]
+        extra_note = (f"; {len(vus)} other allele(s) of uncertain significance in this gene would count only "
+                      f"in trans, which needs parental or phased genotypes")
+    elif len(vus) > PM3_MAX_UNCERTAIN_PARTNERS:
+        partners = [g for g in partners if _class(g) != "Uncertain significance"]
+        extra_note = (f"; {len(vus)} other allele(s) of uncertain significance in this gene were not phased "
+                      f"one by one (more than {PM3_MAX_UNCERTAIN_PARTNERS}; annotate and filter the VCF first)")
     partners.sort(key=lambda g: PM3_PARTNER_CLASSES.index(_class(g)))
     for g in partners:
         gc = _class(g)
@@ -205,14 +212,10 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
             obs[-1]["partner_not_rare"] = partner_common
         if best is None or pts > best["points"]:
             best = obs[-1]
-    if skipped_vus:
-        extra_note = (f"; {skipped_vus} other allele(s) of uncertain significance in this gene were not phased "
-                      f"one by one (more than {PM3_MAX_UNCERTAIN_PARTNERS}; annotate and filter the VCF first)")
-    else:
-        extra_note = ""
     if best is None:
-        return _r("PM3", False, "no second rare allele classified Pathogenic, Likely pathogenic or of uncertain "
-                                "significance in this gene in this person" + extra_note, points=0.0)
+        return _r("PM3", False, "no second rare allele that could score (Pathogenic, Likely pathogenic, or of "
+                                "uncertain significance in trans) in this gene in this person: 0.0 point(s) "
+                                "(SVI PM3 v1.0)" + extra_note, points=0.0)
     obs.sort(key=lambda o: -o["points"])
     if len(obs) > PM3_MAX_OBSERVATIONS_SHOWN:
         obs = obs[:PM3_MAX_OBSERVATIONS_SHOWN] + [{"more_partners_not_shown": len(obs) - PM3_MAX_OBSERVATIONS_SHOWN}]
