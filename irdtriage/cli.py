@@ -14,6 +14,7 @@ from typing import Optional, Sequence
 
 from . import CAUTION, __version__
 from .errors import InputError
+from .panel import parse_gene_option
 
 FORMATS = ("json", "html", "tsv", "vcf", "phenopacket")
 
@@ -31,17 +32,6 @@ def _formats(text: str) -> list[str]:
     """--formats of triage/demo: result.json is always written, every other output derives from it."""
     items = _format_list(text)
     return items if "json" in items else ["json"] + items
-
-
-def _gene_list(text: str) -> list[str]:
-    if text.startswith("@"):
-        path = text[1:]
-        try:
-            lines = Path(path).read_text(encoding="utf-8").splitlines()
-        except OSError as e:
-            raise InputError(f"cannot read gene list: {e.strerror}", path) from None
-        return [g.strip() for line in lines for g in line.split("#")[0].replace(",", " ").split() if g.strip()]
-    return [g.strip() for g in text.split(",") if g.strip()]
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -205,7 +195,7 @@ def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optiona
 
 
 def cmd_triage(args, argv) -> int:
-    genes = _gene_list(args.genes) if args.genes else None
+    genes = parse_gene_option(args.genes) if args.genes else None
     kwargs = dict(
         sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
@@ -242,7 +232,7 @@ def cmd_panel(args, parser) -> int:
     if not args.panel_command:
         parser.parse_args(["panel", "--help"])
         return 2
-    genes = _gene_list(args.genes) if getattr(args, "genes", None) else None
+    genes = parse_gene_option(args.genes) if getattr(args, "genes", None) else None
     panel = load_panel(args.panel, genes=genes)
     console = _console()
     if args.panel_command == "list":

@@ -152,11 +152,19 @@ def _criteria_list(f: models.Finding) -> list[dict[str, Any]]:
              "evidence": _jsonable(cr.evidence, memo), "source": cr.source} for cr in f.criteria]
 
 
+PROTEIN_POSITION_KEYS = ("Protein_position", "AA.pos / AA.length", "protein_position")  # CSQ, ANN, generic
+
+
+def _protein_field(extra: dict[str, Any]) -> str:
+    """The annotation's "position/length" protein field ("356/533"), or ""."""
+    for key in PROTEIN_POSITION_KEYS:
+        if extra.get(key):
+            return str(extra[key])
+    return ""
+
+
 def _protein_position(extra: dict[str, Any]) -> Optional[str]:
-    raw = extra.get("Protein_position") or extra.get("AA.pos / AA.length") or extra.get("protein_position")
-    if not raw:
-        return None
-    return str(raw).split("/")[0].strip() or None
+    return _protein_field(extra).split("/")[0].strip() or None
 
 
 CLASS_ORDER = {c: i for i, c in enumerate(models.CLASSES)}
@@ -201,12 +209,9 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel,
 def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
     """Protein length as the annotation gives it ("356/533" in a Protein_position or AA.pos / AA.length field)."""
     for f in h.findings:
-        for key in ("Protein_position", "AA.pos / AA.length", "protein_position"):
-            raw = str(f.annotation.extra.get(key) or "")
-            if "/" in raw:
-                tail = raw.rsplit("/", 1)[1].strip()
-                if tail.isdigit():
-                    return {"length": int(tail), "domains": []}
+        _, sep, tail = _protein_field(f.annotation.extra).rpartition("/")
+        if sep and tail.strip().isdigit():
+            return {"length": int(tail.strip()), "domains": []}
     return None
 
 
