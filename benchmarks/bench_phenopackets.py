@@ -129,7 +129,7 @@ def run_pipeline(triage, case, all_cases, pp_path, tmp: Path, matcher, r) -> Non
             r["classes"].append(f.get("classification") or "unclassified")
     r["status"].append(res.get("case", {}).get("status"))
     rf = (res.get("phenotype") or {}).get("retinal_fit")
-    r["retinal_verdict"].append(None if rf is None else bool(rf.get("fits")))
+    r["retinal_decision"].append(None if rf is None else bool(rf.get("fits")))
     if rank != 1 or fitv != case.expected_fit:
         r["misses"].append(f"{case.path.name}: rank {rank}, fit {fitv!r} (published {case.expected_fit!r}), "
                            f"top {syms[:3]}")
@@ -209,7 +209,7 @@ def print_pipeline_table(rows) -> None:
     print("min margin: case gene's score minus the best other gene's score (> 0 means ranked first)")
     for gene in sorted(NON_RETINAL_GENES & set(rows)):
         r = rows[gene]
-        v = r["retinal_verdict"]
+        v = r["retinal_decision"]
         print(f"\n{gene} (non-retinal presentations): pipeline says the phenotype does not fit a retinal disease "
               f"in {pct(sum(x is False for x in v), len(v))}; case status SOLVED in "
               f"{sum(s == 'SOLVED' for s in r['status'])}/{len(r['status'])}. Fit vs published allelic state "

@@ -259,11 +259,11 @@ def _de_novo(gene, f, proband, mother, father, sex_n, build, confirmed, specific
     if mother is None and father is None:
         why = "not evaluable: no parental genotypes"
         return [_r("PS2", None, why), _r("PM6", None, why)]
-    verdict, how = de_novo_evidence(f, proband, mother, father, min_dp, min_gq, sex_n, build)
-    if verdict is None:
+    decision, how = de_novo_evidence(f, proband, mother, father, min_dp, min_gq, sex_n, build)
+    if decision is None:
         why = f"not evaluable: {how}"
         return [_r("PS2", None, why), _r("PM6", None, why)]
-    if verdict is False:
+    if decision is False:
         why = f"not de novo: {how}"
         return [_r("PS2", False, why), _r("PM6", False, why)]
     single_allele_disease = gene.dominant or (sex_n == "MALE" and gene.x_linked and is_x_nonpar(f.variant, build))

@@ -2,7 +2,7 @@
 
 Everything here reads :class:`~irdtriage.models.Call` objects (one per sample per split
 allele: ``gt`` 0 = reference, 1 = this allele, 2 = another allele, None = missing) and
-returns plain dataclasses with a reason for every verdict.
+returns plain dataclasses with a reason for every decision.
 
 Rules used (common practice: Mendelian inheritance, no sources beyond textbook genetics)
 -------------------------------------------------------------------------------------
@@ -293,7 +293,7 @@ def _gt(c: Call) -> str:
 def de_novo_evidence(finding: Finding, proband: str, mother: Optional[str], father: Optional[str],
                      min_dp: int = 10, min_gq: int = 20, proband_sex: Optional[str] = None,
                      build: Optional[str] = None) -> tuple[Optional[bool], str]:
-    """(verdict, reason): True de novo, False inherited / parental alt reads, None not decidable."""
+    """(decision, reason): True de novo, False inherited / parental alt reads, None not decidable."""
     pc = _call(finding, proband)
     if not carries(pc):
         return False, "the proband does not carry the allele"

@@ -1,4 +1,3 @@
-# HELPERS: read /work/notes/rules.txt (house rules and how to work in the shared checkout) before anything else.
 """Plain data passed between the stages of irdtriage.
 
 Every stage is a function over these dataclasses; nothing here does I/O or formatting.

@@ -105,7 +105,7 @@ class CaseCall:
     status: str  # one of models.CASE_STATUSES
     summary: str  # one sentence
     next_steps: list[str] = field(default_factory=list)
-    phenotype_fits_retina: Optional[bool] = None  # the case-level phenotype verdict the call used
+    phenotype_fits_retina: Optional[bool] = None  # the case-level phenotype decision the call used
     caution: str = CAUTION
 
 
