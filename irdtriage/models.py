@@ -47,7 +47,13 @@ GENOTYPE_FITS = (
 CASE_STATUSES = ("SOLVED", "IN_PROGRESS", "UNSOLVED")
 INTERPRETATION_STATUSES = ("CAUSATIVE", "CANDIDATE", "CONTRIBUTORY", "REJECTED", "UNKNOWN_STATUS")
 
-ZYGOSITIES = ("heterozygous", "homozygous", "hemizygous", "reference", "no call")
+# Allelic state of one call. "hemizygous": one copy of the locus (chrX outside the pseudoautosomal
+# regions or chrY in a male); "homoplasmic" / "heteroplasmic": mitochondrial calls (all or part of
+# the mtDNA copies carry the allele); "haploid call": a one-allele GT where two copies are expected
+# (an autosome, or chrX in a female) -- a caller or copy-number problem to review, never read as
+# homozygous.
+ZYGOSITIES = ("heterozygous", "homozygous", "hemizygous", "homoplasmic", "heteroplasmic", "haploid call",
+              "reference", "no call")
 
 
 # ---------------------------------------------------------------------------
