@@ -9,7 +9,11 @@ applies the 50-nucleotide rule (Abou Tayoun et al., Hum Mutat 2018;39:1517-1524:
 in the last exon, or in the 3'-most 50 nt of the penultimate exon, is not predicted to trigger
 NMD).
 
-No CDS coordinates are available: distances are counted over exonic nucleotides of the whole
+``coding:`` entries (``Coding``; protein and CDS length, CDS ends and exons on GRCh38, each from
+a named record that carries a CDS) give PVS1 the protein length when the annotation does not, and
+a transcript model for genes the GENCODE-derived tables do not cover.
+
+Without CDS coordinates distances are counted over exonic nucleotides of the whole
 transcript model, which is the same as over coding sequence for positions upstream of the last
 exon-exon junction (the rule measures to that junction).  Conservative choices (ours):
 
@@ -24,7 +28,7 @@ exon-exon junction (the rule measures to that junction).  Conservative choices (
 from __future__ import annotations
 
 import hashlib
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 from typing import Any, Optional
@@ -78,6 +82,33 @@ class ExonHit:
         return dict(self.__dict__)
 
 
+@dataclass(frozen=True)
+class Coding:
+    """Coding structure of one gene's reference transcript (GRCh38), from a named record."""
+    symbol: str
+    transcript: str
+    protein: str
+    mane_refseq: str
+    mane_protein: str
+    same_protein_as_mane: bool  # protein accession.version equal to MANE Select's: same sequence
+    protein_length: int  # residues, stop codon not counted
+    cds_length: int  # nucleotides, stop codon included
+    chrom: str
+    strand: str
+    cds_start: int
+    cds_end: int
+    exons: tuple[tuple[int, int], ...]
+    source: str
+
+    def transcript_model(self) -> Transcript:
+        return Transcript(self.symbol, "GRCh38", self.chrom, self.strand, self.exons, self.transcript)
+
+    def describe(self) -> str:
+        rel = ("same protein as MANE Select " + self.mane_protein if self.same_protein_as_mane
+               else f"not the MANE Select protein {self.mane_protein}")
+        return f"{self.transcript}/{self.protein} ({rel}; {self.source})"
+
+
 @dataclass
 class TranscriptModel:
     name: str
@@ -85,9 +116,13 @@ class TranscriptModel:
     sha256: str
     path: str
     transcripts: dict[tuple[str, str], Transcript]  # (symbol, build) -> Transcript
+    coding: dict[str, Coding] = field(default_factory=dict)  # symbol -> coding structure (GRCh38)
 
     def get(self, symbol: str, build: str) -> Optional[Transcript]:
         return self.transcripts.get((symbol, build))
+
+    def coding_for(self, symbol: str) -> Optional[Coding]:
+        return self.coding.get(symbol)
 
 
 def default_path() -> Path:
@@ -177,7 +212,68 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
                 fail(w, f"{sym} is listed twice")
             out[(sym, build)] = Transcript(sym, build, str(b["chrom"]), t["strand"], exons,
                                            str(t.get("mane_refseq", "")), str(t.get("mane_ensembl", "")))
-    return TranscriptModel(str(data["name"]), str(data["version"]), hashlib.sha256(raw).hexdigest(), str(p), out)
+    coding = _coding(data.get("coding") or [], fail)
+    return TranscriptModel(str(data["name"]), str(data["version"]), hashlib.sha256(raw).hexdigest(), str(p), out,
+                           coding)
+
+
+def _int(v: Any) -> bool:
+    return isinstance(v, int) and not isinstance(v, bool)
+
+
+def _coding(raw: Any, fail) -> dict[str, Coding]:
+    if not isinstance(raw, list):
+        fail(("coding",), "coding must be a list")
+    out: dict[str, Coding] = {}
+    need = ("symbol", "transcript", "protein", "mane_refseq", "mane_protein", "same_protein_as_mane",
+            "protein_length", "cds_length", "strand", "exon_count", "grch38", "source")
+    for i, c in enumerate(raw):
+        w = ("coding", i)
+        if not isinstance(c, dict):
+            fail(w, "each coding entry must be a mapping")
+        for k in need:
+            if k not in c:
+                fail(w, f"coding entry is missing {k!r}")
+        for k in c:
+            if k not in need:
+                fail(w + (k,), f"unknown key {k!r} in a coding entry")
+        sym = c["symbol"]
+        if not isinstance(sym, str) or not sym:
+            fail(w + ("symbol",), "coding entry needs a gene symbol")
+        if sym in out:
+            fail(w, f"{sym} has two coding entries")
+        if not isinstance(c["same_protein_as_mane"], bool):
+            fail(w + ("same_protein_as_mane",), f"{sym}: same_protein_as_mane must be true or false")
+        pl, cl = c["protein_length"], c["cds_length"]
+        if not _int(pl) or pl < 1:
+            fail(w + ("protein_length",), f"{sym}: protein_length must be a positive integer")
+        if not _int(cl) or cl != 3 * (pl + 1):
+            fail(w + ("cds_length",), f"{sym}: cds_length must be 3 x (protein_length + 1) = {3 * (pl + 1)} "
+                                       "(stop codon included)")
+        if c["strand"] not in ("+", "-"):
+            fail(w + ("strand",), f"{sym}: strand must be + or -")
+        g = c["grch38"]
+        if not isinstance(g, dict) or set(g) != {"chrom", "cds_start", "cds_end", "exons"}:
+            fail(w + ("grch38",), f"{sym}: grch38 must have chrom, cds_start, cds_end and exons")
+        exons = _exons(g["exons"], fail, w + ("grch38", "exons"))
+        if c["exon_count"] != len(exons):
+            fail(w + ("exon_count",), f"{sym}: exon_count {c['exon_count']} but {len(exons)} exons")
+        cs, ce = g["cds_start"], g["cds_end"]
+        if not (_int(cs) and _int(ce) and cs <= ce):
+            fail(w + ("grch38", "cds_start"), f"{sym}: cds_start/cds_end must be integers, start <= end")
+        if not any(a <= cs <= b for a, b in exons) or not any(a <= ce <= b for a, b in exons):
+            fail(w + ("grch38", "cds_start"), f"{sym}: CDS ends must lie in exons")
+        exonic = sum(min(b, ce) - max(a, cs) + 1 for a, b in exons if min(b, ce) >= max(a, cs))
+        if exonic != cl:
+            fail(w + ("cds_length",), f"{sym}: exons between cds_start and cds_end hold {exonic} nt, "
+                                       f"cds_length says {cl}")
+        src = c["source"]
+        if not isinstance(src, dict) or not src.get("name") or not src.get("file"):
+            fail(w + ("source",), f"{sym}: source must name the record (name and file)")
+        out[sym] = Coding(sym, str(c["transcript"]), str(c["protein"]), str(c["mane_refseq"]), str(c["mane_protein"]),
+                          c["same_protein_as_mane"], pl, cl, str(g["chrom"]), c["strand"], cs, ce, exons,
+                          f"{src['name']} {src['file']}")
+    return out
 
 
 @lru_cache(maxsize=4)

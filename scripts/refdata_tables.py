@@ -153,3 +153,116 @@ def check_coordinate_base(mane: dict, t38: dict) -> Counter:
 def one_based(exons: list[tuple[int, int]]) -> list[list[int]]:
     """Raw (start0, end) exons -> [[start, end]] 1-based inclusive, ascending."""
     return [[s + 1, e] for s, e in sorted(exons)]
+
+
+# ---------------------------------------------------------------------------------------------
+# Coding structure (exons, CDS, protein length) from records that carry a CDS.  Each reader
+# returns genomic GRCh38 facts: 1-based inclusive exons in ascending order, cds_start <= cds_end
+# (the stop codon included, as NCBI and LRG records include it), cds_length and protein_length.
+
+def _coding_facts(symbol: str, transcript: str, protein: str, chrom: str, strand: str,
+                  exons: list[list[int]], cds: list[list[int]], protein_length: Optional[int]) -> dict[str, Any]:
+    exons, cds = sorted(exons), sorted(cds)
+    cds_length = sum(e - s + 1 for s, e in cds)
+    if cds_length % 3:
+        raise ValueError(f"{transcript}: CDS length {cds_length} is not a multiple of 3")
+    derived = cds_length // 3 - 1  # codons less the stop codon
+    if protein_length is not None and protein_length != derived:
+        raise ValueError(f"{transcript}: protein sequence has {protein_length} residues, CDS gives {derived}")
+    for s, e in cds:
+        if not any(a <= s and e <= b for a, b in exons):
+            raise ValueError(f"{transcript}: CDS segment {s}-{e} is not inside one exon")
+    return {"symbol": symbol, "transcript": transcript, "protein": protein, "protein_length": derived,
+            "cds_length": cds_length, "chrom": chrom, "strand": strand,
+            "cds_start": cds[0][0], "cds_end": cds[-1][1], "exons": exons}
+
+
+def read_lrg_coding(path: Path) -> dict[str, Any]:
+    """Transcript t1 of an LRG record, placed on GRCh38 through the record's own main-assembly
+    mapping (mismatches ignored; inserted bases on either side shift the coordinates)."""
+    import xml.etree.ElementTree as ET
+    root = ET.parse(str(path)).getroot()
+    fixed = root.find("fixed_annotation")
+    lrg_id = fixed.findtext("id")
+    symbol = root.findtext(".//lrg_locus")
+    tx = fixed.find("transcript")
+    exons = [[int(c.get("start")), int(c.get("end"))] for ex in tx.findall("exon")
+             for c in ex.findall("coordinates") if c.get("coord_system") == lrg_id]
+    cr = tx.find("coding_region/coordinates")
+    c0, c1 = int(cr.get("start")), int(cr.get("end"))
+    seq = "".join((tx.findtext("coding_region/translation/sequence") or "").split())
+    ann_tx = root.find(f".//annotation_set/features/gene/transcript[@fixed_id='{tx.get('name')}']")
+    transcript = ann_tx.get("accession") if ann_tx is not None else tx.get("name")
+    prot = ann_tx.find("protein_product") if ann_tx is not None else None
+    protein = prot.get("accession") if prot is not None else ""
+    maps = [m for m in root.iter("mapping") if m.get("coord_system", "").startswith("GRCh38")
+            and m.get("type") == "main_assembly"]
+    if len(maps) != 1 or len(maps[0].findall("mapping_span")) != 1:
+        raise ValueError(f"{path}: expected one GRCh38 main-assembly mapping span")
+    m, span = maps[0], maps[0].find("mapping_span")
+    l0, l1, o0, o1 = (int(span.get(k)) for k in ("lrg_start", "lrg_end", "other_start", "other_end"))
+    strand = "+" if span.get("strand") == "1" else "-"
+    diffs = []
+    for d in span.findall("diff"):
+        t = d.get("type")
+        ls, le, os_, oe = (int(d.get(k)) for k in ("lrg_start", "lrg_end", "other_start", "other_end"))
+        if t == "other_ins":    # extra genome bases between LRG ls and le
+            diffs.append((le, oe - os_ + 1))
+        elif t == "lrg_ins":    # LRG bases ls..le absent from the genome
+            diffs.append((le + 1, -(le - ls + 1)))
+        elif t != "mismatch":
+            raise ValueError(f"{path}: unknown mapping diff type {t!r}")
+
+    def to_genome(p: int) -> int:
+        shift = sum(n for at, n in diffs if p >= at)
+        k = p - l0 + shift
+        return o0 + k if strand == "+" else o1 - k
+
+    if to_genome(l1) != (o1 if strand == "+" else o0):
+        raise ValueError(f"{path}: mapping diffs do not reconcile the span ends")
+
+    def span_of(a: int, b: int) -> list[int]:
+        x, y = to_genome(a), to_genome(b)
+        return [min(x, y), max(x, y)]
+
+    g_exons = [span_of(a, b) for a, b in exons]
+    g_cds = []
+    for a, b in exons:
+        s, e = max(a, c0), min(b, c1)
+        if s <= e:
+            g_cds.append(span_of(s, e))
+    return _coding_facts(symbol, transcript, protein, m.get("other_name"), strand, g_exons, g_cds,
+                         len(seq) if seq else None)
+
+
+def read_refseqgene_gff_coding(path: Path, transcript: str, chrom: str, anchor: int, strand: str) -> dict[str, Any]:
+    """One mRNA of a RefSeqGene GFF3 (NG_ coordinates): exons from its cDNA_match rows (gapless
+    alignments only), CDS from its CDS rows; placed on GRCh38 as anchor + NG (plus strand) or
+    anchor - NG (minus strand)."""
+    exons, cds, symbol, protein = [], [], "", ""
+    for line in open_text(path):
+        if line.startswith("#") or not line.strip():
+            continue
+        f = line.rstrip("\n").split("\t")
+        if len(f) < 9:
+            continue
+        attrs = dict(kv.split("=", 1) for kv in f[8].split(";") if "=" in kv)
+        s, e = int(f[3]), int(f[4])
+        if f[2] == "cDNA_match" and attrs.get("Target", "").split(" ")[0] == transcript:
+            if "Gap" in attrs:
+                raise ValueError(f"{path}: gapped cDNA_match for {transcript} is not supported")
+            exons.append((s, e))
+        elif f[2] == "CDS" and attrs.get("Parent") == f"rna-{transcript}":
+            cds.append((s, e))
+            symbol, protein = attrs.get("gene", symbol), attrs.get("protein_id", protein)
+    if not exons or not cds:
+        raise ValueError(f"{path}: no exons or CDS rows for {transcript}")
+
+    def g(p: int) -> int:
+        return anchor + p if strand == "+" else anchor - p
+
+    def span_of(a: int, b: int) -> list[int]:
+        return [min(g(a), g(b)), max(g(a), g(b))]
+
+    return _coding_facts(symbol, transcript, protein, chrom, strand, [span_of(*x) for x in exons],
+                         [span_of(*x) for x in cds], None)

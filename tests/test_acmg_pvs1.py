@@ -118,3 +118,68 @@ def test_mixed_mechanism_gene_applied_with_note():  # RHO: AR loss of function, 
 def test_missense_not_null():
     r = evaluate_pvs1(ann("missense_variant", "2/5", "p.Lys296Glu"), gene(), RULES)
     assert r.met is False
+
+
+# --- Protein length and exon structure from the panel when the annotation lacks them ----------
+# RS1 (X-linked retinoschisis), MANE Select NM_000330.4 / NP_000321.1, minus strand.  Exons on
+# GRCh38 from LRG_702 (transcript NM_000330.3, the same protein NP_000321.1, 224 residues), placed
+# by that record's GRCh38 mapping: exon 1 chrX:18672017-18672103, 2 :18657640-18657665,
+# 3 :18656653-18656758, 4 :18647191-18647332, 5 :18644430-18644625, 6 (last) :18639688-18642156.
+# Expected outcomes: Abou Tayoun et al. 2018, Figure 1 (NMD predicted -> PVS1; NMD escape with
+# > 10 % of the protein removed -> PVS1_Strong, else PVS1_Moderate); 50-nt rule from the same paper.
+from irdtriage.models import Variant  # noqa: E402
+
+
+def _rs1():
+    return Gene("RS1", "HGNC:10457", "retinoschisin 1", "NM_000330.4", "ENST00000379984.4", "NP_000321.1", "-",
+                Span("X", 18639688, 18672108), None, ("XLR",), ("LOF",), (), "step")
+
+
+def _rs1_stop(pos_text, transcript="NM_000330.4", mane=True):
+    # the usual CSQ form: Protein_position without "/length", no EXON field
+    return Annotation("RS1", transcript, ("stop_gained",), "c.?", "p.(Trp?Ter)", "", is_mane=mane,
+                      extra={"Protein_position": pos_text})
+
+
+def test_mid_gene_stop_without_length_or_exon_is_very_strong():  # Figure 1: NMD predicted -> PVS1
+    r = evaluate_pvs1(_rs1_stop("65"), _rs1(), RULES, Variant("X", 18656700, "C", "T"), "GRCh38")
+    assert (r.met, r.strength) == (True, "VeryStrong")
+    assert r.evidence["transcript_model"]["exon_number"] == 3
+    assert r.evidence["nmd_predicted"] is True
+
+
+@pytest.mark.parametrize("residue,strength", [
+    ("200", "Strong"),    # last exon, removes 25/224 = 11.2 % > 10 %
+    ("210", "Moderate"),  # last exon, removes 15/224 = 6.7 %
+])
+def test_last_exon_share_uses_panel_protein_length(residue, strength):
+    r = evaluate_pvs1(_rs1_stop(residue), _rs1(), RULES, Variant("X", 18641900, "C", "T"), "GRCh38")
+    assert r.evidence["nmd_predicted"] is False
+    assert r.evidence["protein_length"] == 224  # LRG_702 translation p1
+    assert "LRG_702" in r.evidence["protein_length_source"]
+    assert r.strength == strength
+
+
+@pytest.mark.parametrize("offset,nmd,strength", [
+    (52, True, "VeryStrong"),  # 53 nt before the last exon-exon junction (> 50 + 2 nt codon slack)
+    (51, False, "Strong"),     # within the last 50 nt of the penultimate exon: escapes NMD; 55/224 removed
+])
+def test_penultimate_exon_last_50_nt(offset, nmd, strength):
+    # exon 5's 3' end (transcript orientation) is its lowest coordinate, 18644430, on the minus strand
+    r = evaluate_pvs1(_rs1_stop("170"), _rs1(), RULES, Variant("X", 18644430 + offset, "C", "T"), "GRCh38")
+    assert r.evidence["transcript_model"]["exon_number"] == 5
+    assert r.evidence["nmd_predicted"] is nmd
+    assert r.strength == strength
+
+
+def test_panel_length_not_used_for_another_transcript():
+    r = evaluate_pvs1(_rs1_stop("200", transcript="NM_999999.1", mane=False), _rs1(), RULES,
+                      Variant("X", 18641900, "C", "T"), "GRCh38")
+    assert r.evidence["protein_length"] is None and r.strength == "Moderate"
+    assert "neither MANE Select" in r.evidence["protein_length_note"]
+
+
+def test_annotated_length_wins_over_panel():
+    r = evaluate_pvs1(_rs1_stop("200/210"), _rs1(), RULES, Variant("X", 18641900, "C", "T"), "GRCh38")
+    assert r.evidence["protein_length"] == 210 and r.evidence["protein_length_source"] == "Protein_position"
+    assert r.strength == "Moderate"  # 11/210 = 5.2 % removed (with the panel's 224 it would be 11.2 %)

@@ -15,7 +15,11 @@ Branches implemented (strength names as applied):
     lies on it, the exon and the distance to the last exon-exon junction come from the model
     (50-nt rule measured, frameshift new-stop caveats in irdtriage.transcripts).  When the
     annotation gives an exon number/count that disagrees with the model, the model is not used.
-    Protein length for the removed share comes from ``Protein_position`` "x/N" when annotated.
+    Protein length for the removed share comes from ``Protein_position`` "x/N" when annotated, else
+    from the panel's coding structure (``coding:`` in panels/transcripts.yaml, a named record with a
+    CDS) when the annotated transcript is MANE Select or that record's transcript; the reason and
+    evidence name the source.  A gene with a coding record but no table transcript uses the
+    record's exons as its transcript model on GRCh38.
 * canonical +/-1,2 splice: without a transcript model the effect of exon skipping on frame
   and NMD is not assessable -> conservative branch (frame preserved, region not known to be
   critical, share of protein unknown) -> Moderate.
@@ -29,7 +33,7 @@ import re
 from typing import Optional
 
 from ..models import Annotation, CriterionResult, Gene, Variant
-from ..transcripts import TranscriptModel, default_model, locate_in, nmd_predicted
+from ..transcripts import Coding, TranscriptModel, default_model, locate_in, nmd_predicted
 from .common import ABLATION, EXON_LOSS, NONSENSE_FS, SPLICE_CANONICAL, START_LOST, fraction, protein_position, \
     result, terms
 from .rules import Rules
@@ -49,6 +53,22 @@ def _fs_ter(hgvs_p: str) -> Optional[int]:
     return int(m.group(1)) if m else None
 
 
+def _load(model: Optional[TranscriptModel]) -> tuple[Optional[TranscriptModel], str]:
+    try:
+        return (model if model is not None else default_model()), ""
+    except Exception as e:  # a broken packaged file must not stop classification; say so
+        return None, f"transcript model not loaded ({e})"
+
+
+def _coding(gene: Gene, model: Optional[TranscriptModel]) -> Optional[Coding]:
+    m, _ = _load(model)
+    return m.coding_for(gene.symbol) if m is not None else None
+
+
+def _base(acc: str) -> str:
+    return (acc or "").split(".")[0]
+
+
 def _model_hit(variant: Optional[Variant], build: Optional[str], gene: Gene,
                model: Optional[TranscriptModel]) -> tuple[Optional[object], str]:
     """Exon hit of the variant's 3'-most base on the curated transcript model, or (None, why not)."""
@@ -56,11 +76,13 @@ def _model_hit(variant: Optional[Variant], build: Optional[str], gene: Gene,
         return None, "no variant position"
     if not build:
         return None, "genome build not known to the criterion engine"
-    try:
-        m = model if model is not None else default_model()
-    except Exception as e:  # a broken packaged file must not stop classification; say so
-        return None, f"transcript model not loaded ({e})"
+    m, why = _load(model)
+    if m is None:
+        return None, why
     tx = m.get(gene.symbol, build)
+    coding = m.coding_for(gene.symbol)
+    if tx is None and coding is not None and build == "GRCh38":
+        tx = coding.transcript_model()
     if tx is None:
         return None, f"no curated transcript model for {gene.symbol} on {build}"
     if tx.chrom != variant.chrom_bare:
@@ -94,7 +116,7 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules, variant: Optional[V
     if t & NONSENSE_FS:
         hit, why_not = _model_hit(variant, build, gene, model)
         return _truncating(ann, gene, g, cfg, ev, note, hit, why_not, "frameshift" if "frameshift_variant" in t
-                           else "stop")
+                           else "stop", _coding(gene, model))
     if t & SPLICE_CANONICAL:
         return result("PVS1", True, "Moderate",
                       f"canonical splice site ({ann.hgvs_c or 'position from consequence'}): no transcript model "
@@ -107,11 +129,28 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules, variant: Optional[V
                   + note, **ev)
 
 
+def _panel_length(ann: Annotation, coding: Optional[Coding]) -> tuple[Optional[int], str]:
+    """Protein length from the panel's coding record when it describes the annotated transcript."""
+    if coding is None:
+        return None, "no coding record for this gene in the panel"
+    if ann.is_mane or _base(ann.transcript) in (_base(coding.transcript), _base(coding.mane_refseq)):
+        return coding.protein_length, f"panel coding record {coding.describe()}"
+    return None, (f"annotated transcript {ann.transcript or '?'} is neither MANE Select nor the panel's coding "
+                  f"record {coding.transcript}")
+
+
 def _truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: dict, note: str, hit=None,
-                why_not: str = "", kind: str = "stop") -> CriterionResult:
+                why_not: str = "", kind: str = "stop", coding: Optional[Coding] = None) -> CriterionResult:
     n, total = fraction(ann.exon)
     pos, length, pos_key = protein_position(ann)
-    ev.update(protein_position=pos, protein_length=length, protein_position_field=pos_key)
+    length_from = pos_key if length else ""
+    if pos is not None and not length:
+        length, length_from = _panel_length(ann, coding)
+        if not length:
+            ev["protein_length_note"] = length_from
+            length_from = ""
+    ev.update(protein_position=pos, protein_length=length, protein_position_field=pos_key,
+              protein_length_source=length_from or None)
     if hit is not None and ((total is not None and total != hit.exon_count)
                             or (n is not None and n != hit.exon_number)):
         why_not = (f"annotated exon {ann.exon} disagrees with the transcript model "
@@ -154,8 +193,10 @@ def _truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: dict, note:
         limit = cfg["removed_fraction_strong"]
         if removed > limit:
             return result("PVS1", True, "Strong", f"{why}; removes {removed:.0%} of the protein "
-                          f"(residue {pos} of {length}, from {pos_key}) > {limit:.0%} -> Strong" + note, **ev)
+                          f"(residue {pos} of {length}, length from {length_from}) > {limit:.0%} -> Strong" + note,
+                          **ev)
         return result("PVS1", True, "Moderate", f"{why}; removes {removed:.0%} of the protein "
-                      f"(residue {pos} of {length}) <= {limit:.0%} -> Moderate" + note, **ev)
+                      f"(residue {pos} of {length}, length from {length_from}) <= {limit:.0%} -> Moderate" + note,
+                      **ev)
     return result("PVS1", True, "Moderate", f"{why}; protein length unknown so the removed share cannot be "
                   "measured: conservative -> Moderate" + note, **ev)
