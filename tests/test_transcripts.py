@@ -121,3 +121,52 @@ def test_loader_errors_name_the_line(tmp_path):
     with pytest.raises(InputError) as e:
         load_transcripts(bad)
     assert e.value.line == 6
+
+
+# --- coding: entries (validated at load; each problem names file and line) -------------------
+CODING_OK = """name: t
+version: '1'
+transcripts: []
+coding:
+- symbol: GENEX
+  transcript: NM_1.1
+  protein: NP_1.1
+  mane_refseq: NM_1.2
+  mane_protein: NP_1.1
+  same_protein_as_mane: true
+  protein_length: 3
+  cds_length: 12
+  strand: +
+  exon_count: 2
+  grch38:
+    chrom: '1'
+    cds_start: 105
+    cds_end: 205
+    exons:
+    - [100, 110]
+    - [200, 220]
+  source: {name: test record, file: x.xml}
+"""
+
+
+def test_coding_entry_loads(tmp_path):
+    p = tmp_path / "t.yaml"
+    p.write_text(CODING_OK)
+    c = load_transcripts(p).coding_for("GENEX")
+    # CDS 105..110 (6 nt) + 200..205 (6 nt) = 12 nt = 3 codons + stop
+    assert c.protein_length == 3 and c.exons == ((100, 110), (200, 220))
+
+
+@pytest.mark.parametrize("old,new,problem", [
+    ("cds_length: 12", "cds_length: 13", "3 x (protein_length + 1)"),
+    ("cds_end: 205", "cds_end: 206", "hold 13 nt"),
+    ("cds_start: 105", "cds_start: 150", "CDS ends must lie in exons"),
+    ("same_protein_as_mane: true", "same_protein_as_mane: maybe", "true or false"),
+    ("  source: {name: test record, file: x.xml}\n", "", "missing 'source'"),
+])
+def test_coding_entry_problems_name_the_line(tmp_path, old, new, problem):
+    p = tmp_path / "t.yaml"
+    p.write_text(CODING_OK.replace(old, new))
+    with pytest.raises(InputError) as e:
+        load_transcripts(p)
+    assert problem in str(e.value) and e.value.line is not None

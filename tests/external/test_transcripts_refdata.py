@@ -99,3 +99,57 @@ def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_table
         if t["grch37"]:
             g37 = model.get(t["symbol"], "GRCh37")
             assert [e - b for b, e in g37.exons] == [e - b for b, e in tx.exons]
+
+
+# --- Coding structure against the records that carry a CDS (../shared/refdata/refseqgene) ----
+# * LRG_702 (RS1; LRG project): transcript NM_000330.3, protein NP_000321.1 of 224 residues
+#   (the count of the record's translation; 224 also from memory), GRCh38 mapping chrX:18629524-18682449
+#   on the minus strand.  MANE v1.5 lists RS1 as NM_000330.4 / NP_000321.1, starting at 18639688.
+# * NG_009497.1 GFF3 (USH2A; NCBI RefSeqGene): transcript NM_206933.2, protein NP_996816.2 of
+#   5,202 residues (from memory); GRCh38 = 216,428,397 - NG position (shared/refdata README, where
+#   the reference base was checked at 43 expert-panel substitutions).
+REFSEQGENE = ROOT.parent / "shared" / "refdata" / "refseqgene"
+
+
+@pytest.fixture(scope="module")
+def records():
+    lrg, gff = REFSEQGENE / "LRG_702.xml", REFSEQGENE / "NG_009497.1.gff3"
+    if not (lrg.is_file() and gff.is_file()):
+        pytest.skip("../shared/refdata/refseqgene records not present (outside reference data)")
+    s = _script()
+    return (s.read_lrg_coding(lrg),
+            s.read_refseqgene_gff_coding(gff, "NM_206933.2", "1", 216428397, "-"))
+
+
+def test_rs1_from_lrg(records, gene_tables):
+    rs1, _ = records
+    assert (rs1["symbol"], rs1["transcript"], rs1["protein"]) == ("RS1", "NM_000330.3", "NP_000321.1")
+    assert rs1["protein_length"] == 224 and rs1["cds_length"] == 675  # 3 x (224 + 1)
+    assert len(rs1["exons"]) == 6 and rs1["strand"] == "-"
+    # the record's mapping, indels included, puts the 3' end of NM_000330.3 on MANE's 3' end
+    mane = _script().read_mane(gene_tables.mane)
+    assert rs1["exons"][0][0] == mane["RS1"]["start"] == 18639688
+    assert mane["RS1"]["refseq_protein"] == "NP_000321.1"
+
+
+def test_ush2a_from_refseqgene(records, gene_tables):
+    _, ush = records
+    assert (ush["symbol"], ush["transcript"], ush["protein"]) == ("USH2A", "NM_206933.2", "NP_996816.2")
+    assert ush["protein_length"] == 5202 and ush["cds_length"] == 3 * 5203
+    assert len(ush["exons"]) == 72
+    mane = _script().read_mane(gene_tables.mane)
+    lo, hi = ush["exons"][0][0], ush["exons"][-1][1]
+    assert mane["USH2A"]["start"] <= lo and hi <= mane["USH2A"]["end"]
+
+
+def test_packaged_coding_matches_records(records):
+    model = load_transcripts()
+    for rec in records:
+        c = model.coding_for(rec["symbol"])
+        assert c is not None, rec["symbol"]
+        assert (c.transcript, c.protein, c.protein_length, c.cds_length) == (
+            rec["transcript"], rec["protein"], rec["protein_length"], rec["cds_length"])
+        assert [list(e) for e in c.exons] == rec["exons"]
+        assert (c.cds_start, c.cds_end) == (rec["cds_start"], rec["cds_end"])
+    assert model.coding_for("RS1").same_protein_as_mane is True
+    assert model.coding_for("USH2A").same_protein_as_mane is False  # MANE Select protein is NP_996816.3
