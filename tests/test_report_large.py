@@ -18,6 +18,7 @@ from pathlib import Path
 
 import phenopackets
 import pysam
+import pysam.bcftools
 import pytest
 from google.protobuf import json_format
 from rich.console import Console
