@@ -7,3 +7,15 @@ if str(ROOT) not in sys.path:
 
 # Outside reference data for checks (read-only; see ../shared/refdata/README.md).
 REFDATA = ROOT.parent / "shared" / "refdata"
+
+EXTERNAL_DIR = ROOT / "tests" / "external"
+
+
+def pytest_collection_modifyitems(config, items):
+    """Every check under tests/external reads outside reference data: mark it ``external``
+    (each module also skips, with the reason, when its ../shared/refdata files are absent)."""
+    import pytest
+
+    for item in items:
+        if EXTERNAL_DIR in Path(str(item.fspath)).resolve().parents:
+            item.add_marker(pytest.mark.external)

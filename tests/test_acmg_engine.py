@@ -22,7 +22,13 @@ def finding(term="stop_gained", exon="5/24", p="p.Arg300Ter", evidence=None):
 def test_all_codes_in_order_with_reasons():
     res = evaluate(finding(), GENE, RULES)
     assert [r.code for r in res] == list(ALL_CODES)
-    assert all(r.reason for r in res)
+    assert all(isinstance(r.reason, str) and len(r.reason.split()) >= 2 for r in res), \
+        [r.code for r in res if len(str(r.reason).split()) < 2]
+    by = {r.code: r for r in res}
+    # stop in exon 5 of 24 of the MANE Select transcript: NMD predicted -> PVS1 Very Strong
+    # (Abou Tayoun et al. 2018), and the reason names the exon it used
+    assert (by["PVS1"].met, by["PVS1"].strength) == (True, "VeryStrong")
+    assert "5/24" in by["PVS1"].reason and "NMD" in by["PVS1"].reason
     assert all((r.met is True) == (r.strength is not None) for r in res)
 
 

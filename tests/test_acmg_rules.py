@@ -9,8 +9,11 @@ from irdtriage.errors import InputError
 
 
 def test_default_rules_load_and_hash():
+    import yaml
+
     r = load_rules()
-    assert r.name and r.version
+    doc = yaml.safe_load(Path(default_path()).read_text())  # the file read by PyYAML, independently
+    assert (r.name, r.version) == (doc["name"], doc["version"])
     assert r.sha256 == hashlib.sha256(Path(r.path).read_bytes()).hexdigest()
     assert Path(default_path()).name == "criteria.yaml"
 

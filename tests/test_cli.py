@@ -41,10 +41,24 @@ def demo_out(tmp_path_factory) -> Path:
 
 def test_demo_writes_every_output(demo_out: Path):
     names = {p.name for p in demo_out.iterdir()}
-    for expected in ("result.json", "report.html", "findings.tsv", "findings.vcf.gz", "findings.vcf.gz.tbi",
-                     "ARDEN-P1.phenopacket.json"):
-        assert expected in names, names
-    assert not [n for n in names if n.endswith(".part")], "temporary files left behind"
+    assert names == {"result.json", "report.html", "findings.tsv", "findings.vcf.gz", "findings.vcf.gz.tbi",
+                     "ARDEN-P1.phenopacket.json"}, names  # nothing missing, no temporary file left
+    result = json.loads((demo_out / "result.json").read_text())
+    ids = [f["id"] for f in result["findings"]]
+    assert ids
+    # each output holds every finding and the caution, read by the program that consumes it
+    first = " ".join(CAUTION.split())
+    html = (demo_out / "report.html").read_text(encoding="utf-8")
+    assert html.lstrip().lower().startswith("<!doctype html") and html.rstrip().endswith("</html>")
+    assert first in " ".join(html.split())
+    rows = (demo_out / "findings.tsv").read_text(encoding="utf-8").splitlines()
+    assert rows[0].startswith("#") and "CAUTION" in rows[0]
+    assert [r.split("\t")[0] for r in rows[2:]] == ids
+    from google.protobuf.json_format import Parse
+    from phenopackets import Phenopacket
+
+    pp = Parse((demo_out / "ARDEN-P1.phenopacket.json").read_text(), Phenopacket())  # GA4GH schema
+    assert pp.subject.id == "ARDEN-P1"
 
 
 def test_demo_result_follows_schema_and_carries_caution(demo_out: Path):
@@ -69,23 +83,38 @@ def test_demo_result_follows_schema_and_carries_caution(demo_out: Path):
 
 
 def test_demo_vcf_output_reads_back_with_htslib(demo_out: Path):
-    with pysam.VariantFile(str(demo_out / "findings.vcf.gz")) as vf:
-        n = sum(1 for _ in vf)
     result = json.loads((demo_out / "result.json").read_text())
-    assert n >= 1 and n <= len(result["findings"])
+    with pysam.VariantFile(str(demo_out / "findings.vcf.gz")) as vf:
+        got = {rec.info["IRDT_ID"]: (rec.chrom, rec.pos, rec.ref, rec.alts[0]) for rec in vf}
+        # the tabix index works: every finding is fetched back by its own position
+        for f in result["findings"]:
+            hits = [r.info["IRDT_ID"] for r in vf.fetch(f["chrom"], f["pos"] - 1, f["pos"])]
+            assert f["id"] in hits, f["id"]
+    assert got == {f["id"]: (f["chrom"], f["pos"], f["ref"], f["alt"]) for f in result["findings"]}
 
 
 def test_explain_shows_all_criteria_for_a_finding(demo_out: Path):
+    import re
+
+    result = json.loads((demo_out / "result.json").read_text())
+    f = next(x for x in result["findings"] if x["id"] == "F1")
     r = run("explain", "F1", "--result", str(demo_out / "result.json"))
     assert r.returncode == 0, r.stderr
-    for code in ("PVS1", "PM2", "BA1", "BP7"):
-        assert code in r.stdout
+    assert f["classification"] in r.stdout
+    # one table row per ACMG/AMP code, with the met / not met / not evaluable state of the result
+    rows = dict(m.groups() for m in re.finditer(r"^\S (\w+) +\S (met|not met|not evaluable) ", r.stdout, re.M))
+    want = {c["code"]: {True: "met", False: "not met", None: "not evaluable"}[c["met"]] for c in f["criteria"]}
+    assert rows == want
+    assert set(rows) == set(ALL_CODES)
 
 
 def test_report_rerenders_from_saved_result(demo_out: Path, tmp_path: Path):
     r = run("report", str(demo_out / "result.json"), "--format", "tsv,html", "--out", str(tmp_path))
     assert r.returncode == 0, r.stderr
-    assert (tmp_path / "findings.tsv").exists() and (tmp_path / "report.html").exists()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["findings.tsv", "report.html"]
+    # the same result renders to the same table and page as the triage run wrote
+    assert (tmp_path / "findings.tsv").read_text() == (demo_out / "findings.tsv").read_text()
+    assert (tmp_path / "report.html").read_text() == (demo_out / "report.html").read_text()
 
 
 def test_panel_commands():

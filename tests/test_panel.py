@@ -294,8 +294,17 @@ def test_cascade_validation_errors_name_file_and_line(tmp_path, old, new, needle
 
 
 def test_load_cascade_alone():
+    import yaml
+
+    from irdtriage.panel import default_cascade_path
+
     version, steps, data = load_cascade()
-    assert version and data and "photon_capture" in steps
+    raw = default_cascade_path().read_bytes()
+    doc = yaml.safe_load(raw)  # the file read by PyYAML, independently of the loader
+    assert data == raw
+    assert version == doc["version"]
+    assert list(steps) == [s["id"] for s in doc["steps"]]
+    assert list(steps)[0] == "photon_capture"
 
 
 # ---------------------------------------------------------------------------

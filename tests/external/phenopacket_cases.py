@@ -380,18 +380,7 @@ def write_case_phenopacket(case: RefCase, path: Path | str) -> Path:
 
 
 def candidate_genes() -> list[str]:
-    """Genes to rank: the project panel when ``irdtriage.panel`` loads, else (stand-in while
-    the panel is being written) every gene HPO annotates to Retinal dystrophy (HP:0000556)
-    plus the refdata genes."""
-    try:
-        from irdtriage.panel import load_panel
+    """Genes to rank: the project panel (a broken panel is an error, never a switch to another list)."""
+    from irdtriage.panel import load_panel
 
-        return list(load_panel().genes)
-    except Exception:  # panel module absent or not loadable yet
-        from irdtriage.phenotype import get_ontology
-
-        ont = get_ontology()
-        genes = {g.name for g in ont.get_hpo_object("HP:0000556").genes}
-        if PHENOPACKETS.is_dir():
-            genes |= {p.name for p in PHENOPACKETS.iterdir() if p.is_dir()}
-        return sorted(genes)
+    return list(load_panel().genes)

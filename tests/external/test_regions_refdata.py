@@ -26,17 +26,6 @@ def _rows(path):
         return {f[0]: f for f in (line.rstrip("\n").split("\t") for line in fh if not line.startswith("#"))}
 
 
-def test_committed_file_equals_rebuild(tmp_path, gene_tables):
-    spec = importlib.util.spec_from_file_location("curate_exons", ROOT / "scripts" / "curate_exons.py")
-    mod = importlib.util.module_from_spec(spec)
-    spec.loader.exec_module(mod)
-    out = tmp_path / "exons.yaml"
-    assert mod.main(["--grch38", str(gene_tables.grch38), "--grch37", str(gene_tables.grch37),
-                     "--mane", str(gene_tables.mane), "--panel", str(ROOT / "panels" / "genes.yaml"), "--out", str(out)]) == 0
-    assert out.read_text() == (ROOT / "panels" / "exons.yaml").read_text(), \
-        "panels/exons.yaml is stale: re-run scripts/curate_exons.py"
-
-
 def test_every_exon_list_is_the_table_row_plus_one(gene_tables):
     # spliceai 1.3.1 tables: EXON_START 0-based, EXON_END inclusive -> exons.yaml [start + 1, end]
     model = load_exons()
