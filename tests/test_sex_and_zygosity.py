@@ -25,7 +25,6 @@ from pathlib import Path
 import pysam
 import pytest
 
-from irdtriage.genotype import allelic_state, settle_zygosity
 from irdtriage.pipeline import triage
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -177,6 +176,8 @@ def _read(path):
 
 
 def test_allelic_states_of_a_real_vcf_through_pysam(tmp_path):
+    from irdtriage.genotype import allelic_state, settle_zygosity
+
     vcf = write_vcf(tmp_path / "my.vcf", ["MAN", "WOMAN"], MITO_Y_VCF, index=False)
     variants = _read(vcf)
     before_autosome = {s: c.zygosity for s, c in variants[-1].calls.items()}
@@ -197,6 +198,8 @@ def test_allelic_states_of_a_real_vcf_through_pysam(tmp_path):
 
 
 def test_unknown_sex_leaves_sex_chromosome_labels_alone(tmp_path):
+    from irdtriage.genotype import settle_zygosity
+
     vcf = write_vcf(tmp_path / "u.vcf", ["MAN", "WOMAN"], MITO_Y_VCF, index=False)
     variants = _read(vcf)
     before = [(v.pos, {s: c.zygosity for s, c in v.calls.items()}) for v in variants if v.chrom != "chrM"]
@@ -208,6 +211,7 @@ def test_unknown_sex_leaves_sex_chromosome_labels_alone(tmp_path):
 
 def test_grch37_par_boundary_for_a_male(tmp_path):
     # X:2,750,000 lies in PAR1 on GRCh38 (ends 2,781,479) but not on GRCh37 (ends 2,699,520).
+    from irdtriage.genotype import allelic_state
     from irdtriage.models import Call
 
     c = Call(sample="MAN", gt=(1, 1), zygosity="homozygous")
