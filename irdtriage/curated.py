@@ -118,3 +118,23 @@ def load_curated(path: str | Path) -> dict[str, list[CriterionResult]]:
         seen[(key, res.code)] = line
         out.setdefault(key, []).append(res)
     return out
+
+
+def unmatched_warning(curated: dict[str, list[CriterionResult]], finding_keys, path: str | Path,
+                      shown: int = 5) -> str | None:
+    """One warning listing curated entries whose variant matches no finding of this run (they
+    were not applied), with their lines; None when every entry matched."""
+    keys = set(finding_keys)
+    items = []
+    for key, results in curated.items():
+        if key in keys:
+            continue
+        for r in results:
+            line = r.evidence.get("line")
+            items.append(f"{r.code} for {key}" + (f" (line {line})" if line else ""))
+    if not items:
+        return None
+    more = f" and {len(items) - shown} more" if len(items) > shown else ""
+    return (f"{len(items)} curated evidence entr{'y' if len(items) == 1 else 'ies'} in {path} match no finding "
+            f"of this run and were not applied: " + "; ".join(items[:shown]) + more
+            + " (check the chrom-pos-ref-alt key: chromosome without 'chr', alleles trimmed as in the findings)")

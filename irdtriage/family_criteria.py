@@ -17,10 +17,13 @@ Sources and numbers
   sum: 0.5 Supporting, 1.0 Moderate, 2.0 Strong, 4.0 VeryStrong. The table rows were
   taken from memory of that document and could not be re-read with the search tool here.
   Rarity: the SVI PM3 guidance counts only variants that are rare in population databases.
-  PM3 is *not met* for a finding whose own pass-1 criteria meet BA1 or BS1 (too common for
-  the disorder) or whose pass-1 class is Benign / Likely benign, with that reason; a partner
-  allele that is common in the same sense, or classed Benign / Likely benign, scores 0
-  points.
+  PM3 is *not met* for a finding whose own criteria (before family criteria) meet BA1 or BS1
+  (too common for the disorder) or that is classified Benign / Likely benign on its own
+  evidence, with that reason; a partner allele that is common in the same sense, or classed
+  Benign / Likely benign, scores 0 points. A partner's class is the one it has on its own
+  evidence, before family criteria (SVI PM3 v1.0: the partner must be classified
+  independently of the allele under review); when its final class differs, the reason says so
+  (``note_final_partner_classes``, run after the second pass).
 * PS2 / PM6 — ClinGen SVI Recommendation for de novo Criteria (PS2 & PM6) Version 1.1
   (from memory): points per de novo occurrence by phenotype consistency — confirmed
   (maternity and paternity confirmed) 2 / 1 / 0.5 / 0 for a phenotype highly specific /
@@ -49,7 +52,8 @@ from __future__ import annotations
 import math
 from typing import Iterable, Mapping, Optional, Sequence
 
-from .genotype import _call, _class, _confident, _gt, carries, de_novo_evidence, is_x_nonpar, phase_between
+from .genotype import (_call, _class, _confident, _gt, carries, de_novo_evidence, is_x_nonpar, male_heterozygous_x,
+                       phase_between)
 from .models import CriterionResult, Finding, Gene
 
 # ClinGen SVI PM3 v1.0 point table (see module docstring).
@@ -150,14 +154,14 @@ def family_criteria(gene: Gene, findings: Sequence[Finding], proband: str, sex: 
 
 # ---------------------------------------------------------------------------
 def common_reason(f: Finding) -> Optional[str]:
-    """Why ``f`` is not a rare allele for PM3 (BA1/BS1 met, or a benign pass-1 class); None when rare."""
+    """Why ``f`` is not a rare allele for PM3 (BA1/BS1 met, or a benign class on its own evidence); None when rare."""
     met = [r for r in f.criteria if r.code in ("BA1", "BS1") and r.met]
     if met:
         r = met[0]
         return f"{r.code} met ({r.reason})" if r.reason else f"{r.code} met"
     c = _class(f)
     if c in ("Benign", "Likely benign"):
-        return f"pass-1 class {c}"
+        return f"classified {c} on its own evidence (before family criteria)"
     return None
 
 
@@ -169,6 +173,9 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
         return _r("PM3", False, f"not a rare allele: {own}; the SVI PM3 guidance counts only rare variants",
                   points=0.0, common=True)
     if sex_n == "MALE" and is_x_nonpar(f.variant, build) and not ("AR" in gene.inheritance):
+        if male_heterozygous_x(_call(f, proband), f.variant, sex_n, build):
+            return _r("PM3", None, "not evaluable: heterozygous call in a male on chrX outside the pseudoautosomal "
+                                   "regions, where one copy is expected (a quality or sex problem)")
         return _r("PM3", False, "hemizygous on chrX in a male: no second allele to place in trans")
     c = _call(f, proband)
     if c.alt_copies >= 2:
@@ -222,20 +229,50 @@ def _pm3(gene, f, others, proband, sex_n, mother, father, build, min_dp, min_gq)
     pts = best["points"]
     s = points_to_strength(pts)
     desc = (f"{best['phase'] if best['phase'] != 'unknown' else 'phase unknown'} with {best['partner']} "
-            f"({best['partner_class']}, pass-1 class): {pts} point(s) (SVI PM3 v1.0); one observation in "
+            f"({_own_class_words(best['partner_class'])}): {pts} point(s) (SVI PM3 v1.0); one observation in "
             f"this person; phase: {best['how']}")
     if "partner_not_rare" in best:
         desc += f"; partner not a rare allele ({best['partner_not_rare']}), so it scores 0"
     desc += extra_note
     if s is None:
-        return _r("PM3", False, desc + "; below the 0.5 needed for Supporting", points=pts, observations=obs)
-    return _r("PM3", True, desc, s, points=pts, observations=obs)
+        return _r("PM3", False, desc + "; below the 0.5 needed for Supporting", points=pts, observations=obs,
+                  partner=best["partner"], partner_class=best["partner_class"])
+    return _r("PM3", True, desc, s, points=pts, observations=obs, partner=best["partner"],
+              partner_class=best["partner_class"])
+
+
+def _own_class_words(cls: str) -> str:
+    return f"classified {cls} on its own evidence, before family criteria"
+
+
+def note_final_partner_classes(findings: Sequence[Finding]) -> int:
+    """After the second pass, say in each PM3 reason when the partner's final class differs from
+    the class it has on its own evidence (the one PM3 counted). The points do not change: the
+    SVI PM3 guidance counts the partner as classified independently of the allele under review.
+    Returns how many reasons were amended."""
+    by_id = {f.id: f for f in findings}
+    changed = 0
+    for f in findings:
+        for cr in f.criteria:
+            if cr.code != "PM3" or cr.source != "family" or "partner" not in cr.evidence:
+                continue
+            partner = by_id.get(cr.evidence["partner"])
+            own = cr.evidence.get("partner_class")
+            final = _class(partner) if partner is not None else None
+            if final is None or final == own or "partner_final_class" in cr.evidence:
+                continue
+            words = _own_class_words(own)
+            cr.reason = cr.reason.replace(words, f"{words}; its final class is {final}", 1)
+            cr.evidence = dict(cr.evidence, partner_final_class=final)
+            changed += 1
+    return changed
 
 
 def _bp2(gene, f, others, proband, mother, father, fully_penetrant, min_dp, min_gq) -> CriterionResult:
     path = [g for g in others if _class(g) == "Pathogenic"]
     if not path:
-        return _r("BP2", False, "no other Pathogenic (pass-1) finding in this gene to compare phase with")
+        return _r("BP2", False, "no other finding in this gene classified Pathogenic on its own evidence (before "
+                                "family criteria) to compare phase with")
     unknown = []
     for g in path:
         ph = phase_between(f, g, proband, mother, father, min_dp, min_gq)
@@ -258,6 +295,10 @@ def _bp2(gene, f, others, proband, mother, father, fully_penetrant, min_dp, min_
 def _de_novo(gene, f, proband, mother, father, sex_n, build, confirmed, specificity, min_dp, min_gq):
     if mother is None and father is None:
         why = "not evaluable: no parental genotypes"
+        return [_r("PS2", None, why), _r("PM6", None, why)]
+    if male_heterozygous_x(_call(f, proband), f.variant, sex_n, build):
+        why = ("not evaluable: heterozygous call in a male on chrX outside the pseudoautosomal regions, where one "
+               "copy is expected (a quality or sex problem)")
         return [_r("PS2", None, why), _r("PM6", None, why)]
     decision, how = de_novo_evidence(f, proband, mother, father, min_dp, min_gq, sex_n, build)
     if decision is None:

@@ -103,6 +103,115 @@ def is_x_nonpar(variant: Variant, build: Optional[str] = None) -> bool:
 
 
 # ---------------------------------------------------------------------------
+# Allelic state once the sex is settled
+# ---------------------------------------------------------------------------
+# Mitochondrial calls: a call whose allele fraction (AD) is at least this share is taken as
+# homoplasmic, below it as heteroplasmic (gnomAD mtDNA release, Laricchia et al., Genome Res
+# 2022: homoplasmic >= 0.95, from memory). A 0/1 chrM call is heteroplasmic whatever its reads.
+HOMOPLASMIC_MIN_FRACTION = 0.95
+
+
+class AllelicState(NamedTuple):
+    zygosity: str  # one of models.ZYGOSITIES
+    fraction: Optional[float] = None  # share of reads carrying the allele (chrM calls with AD), else None
+
+
+def allelic_state(call: Call, chrom: str, pos: int, sex: Optional[str],
+                  build: Optional[str] = None) -> AllelicState:
+    """Allelic state of one call on chrX, chrY or chrM, given the person's chromosomal sex.
+
+    Pure: reads the call, returns the label (``models.ZYGOSITIES``); other chromosomes, and
+    chrX/chrY when the sex is unknown, keep the label the intake gave (``call.zygosity``).
+
+    * male, chrX outside the PARs or chrY: a call without a reference allele (``1/1``, haploid
+      ``1``) is **hemizygous** (one copy of the locus); a heterozygous call stays
+      **heterozygous** (a quality or sex problem, see :func:`male_heterozygous_x_calls`). chrY
+      PARs are hard-masked in the usual GRCh38/GRCh37 analysis sets (common practice), so all
+      of chrY is taken as single-copy.
+    * male, chrX inside a PAR: diploid like an autosome; a one-allele GT is a **haploid call**.
+    * female, chrX: diploid; a one-allele GT is a **haploid call**.
+    * chrM (any sex): **heteroplasmic** when the GT holds the reference or another allele too
+      (``0/1``) or when the AD fraction is below ``HOMOPLASMIC_MIN_FRACTION``, else
+      **homoplasmic**; the fraction is returned when AD is present.
+    """
+    gt = call.gt
+    called = [a for a in gt if a is not None]
+    if not called:
+        return AllelicState("no call")
+    copies = sum(1 for a in called if a == 1)
+    if copies == 0:
+        return AllelicState("reference")
+    c = bare_chrom(chrom)
+    sex_n = sex.upper() if isinstance(sex, str) else None
+    if c == "MT":
+        frac = call.allele_balance
+        mixed = any(a != 1 for a in called)
+        if mixed or (frac is not None and frac < HOMOPLASMIC_MIN_FRACTION):
+            return AllelicState("heteroplasmic", frac)
+        return AllelicState("homoplasmic", frac)
+    single_copy = all(a == 1 for a in gt)  # 1/1 or 1: no reference or other allele in the call
+    if c == "Y" and sex_n == "MALE":
+        return AllelicState("hemizygous" if single_copy else "heterozygous")
+    if c == "X" and sex_n in ("MALE", "FEMALE"):
+        if sex_n == "MALE" and not in_par(chrom, pos, build):
+            return AllelicState("hemizygous" if single_copy else "heterozygous")
+        if len(gt) == 1:
+            return AllelicState("haploid call")
+        return AllelicState("homozygous" if copies == len(gt) else "heterozygous")
+    return AllelicState(call.zygosity)
+
+
+def settle_zygosity(variants: Iterable[Variant], sexes: dict[str, Optional[str]],
+                    build: Optional[str] = None) -> int:
+    """Set every call's ``zygosity`` from :func:`allelic_state` for the people in ``sexes``
+    (sample id -> "MALE"/"FEMALE"/None); chrM calls of every sample. Returns how many labels
+    changed. The pipeline calls this once, right after the sex is settled, so every output
+    (built from the result dict) shows the same allelic state."""
+    changed = 0
+    for v in variants:
+        c = v.chrom_bare
+        if c not in ("X", "Y", "MT"):
+            continue
+        for sid, call in v.calls.items():
+            if c != "MT" and sexes.get(sid) is None:
+                continue
+            state = allelic_state(call, v.chrom, v.pos, sexes.get(sid), build).zygosity
+            if state != call.zygosity:
+                call.zygosity = state
+                changed += 1
+    return changed
+
+
+def male_heterozygous_x(call: Optional[Call], variant: Variant, sex: Optional[str],
+                        build: Optional[str] = None) -> bool:
+    """True for a heterozygous call (reference or another allele beside this one) of a male on
+    chrX outside the PARs or on chrY: one copy is expected there, so it is a quality or sex problem."""
+    if call is None or not isinstance(sex, str) or sex.upper() != "MALE" or not carries(call):
+        return False
+    if not (is_x_nonpar(variant, build) or bare_chrom(variant.chrom) == "Y"):
+        return False
+    return any(a != 1 for a in call.gt if a is not None) and len(call.gt) >= 2
+
+
+def male_heterozygous_x_warning(findings: Sequence[Finding], sexes: dict[str, Optional[str]],
+                                build: Optional[str] = None, shown: int = 5) -> Optional[str]:
+    """One warning naming the findings whose call is heterozygous in a male where one copy is
+    expected (chrX outside the PARs, chrY); None when there are none."""
+    items = []
+    for f in findings:
+        for sid, sex in sexes.items():
+            c = f.variant.calls.get(sid)
+            if male_heterozygous_x(c, f.variant, sex, build):
+                items.append(f"{f.id} ({f.gene} {f.variant.key}) {_gt(c)} in {sid}, allele balance {_fmt_ab(c)}")
+    if not items:
+        return None
+    more = f" and {len(items) - shown} more" if len(items) > shown else ""
+    return ("heterozygous call(s) in a male on chrX outside the pseudoautosomal regions, where one copy is "
+            "expected: " + "; ".join(items[:shown]) + more + ". Kept as heterozygous and not counted as "
+            "hemizygous: check the stated sex, sample contamination, XXY or a mapping artefact")
+
+
+# ---------------------------------------------------------------------------
 # Sex check
 # ---------------------------------------------------------------------------
 @dataclass
@@ -167,6 +276,43 @@ def infer_sex(variants: Iterable[Variant], sample: str, stated: Optional[str] = 
                    f"(heterozygous fraction {frac:.2f} over {nonref} sites): check for a sample mix-up "
                    f"or a sex-chromosome aneuploidy")
     return SexInference(sex, frac, nonref, warning)
+
+
+class StatedSex(NamedTuple):
+    sex: Optional[str]  # "MALE", "FEMALE" or None
+    source: str  # "stated" (--sex), "phenopacket", "ped" or "unknown"
+    warnings: list[str]
+
+
+def settle_stated_sex(explicit: Optional[str], explicit_given: bool = False,
+                      phenopacket_sex: Optional[str] = None, phenopacket_path: Optional[str] = None,
+                      ped_sex: Optional[str] = None, ped_path: Optional[str] = None,
+                      ped_line: Optional[int] = None) -> StatedSex:
+    """The sex the sources *state* (before any inference from chrX).
+
+    ``explicit`` is the normalised ``--sex`` value (``explicit_given`` True when the option was
+    used, even as "unknown"). When the phenopacket and the PED file state different sexes and
+    no ``--sex`` decides, raises :class:`InputError`; an explicit ``--sex`` that differs from a
+    stated source wins and the disagreement is returned as a warning.
+    """
+    from .errors import InputError
+
+    stated = [(name, value, where) for name, value, where in (
+        ("phenopacket", phenopacket_sex, phenopacket_path),
+        ("PED file", ped_sex, f"{ped_path}:{ped_line}" if ped_path and ped_line else ped_path),
+    ) if value is not None]
+    if explicit_given:
+        warns = [f"--sex {explicit.lower() if explicit else 'unknown'} overrides the {name}, which states "
+                 f"{value.lower()} ({where})" for name, value, where in stated if value != explicit]
+        return StatedSex(explicit, "stated", warns)
+    if len({v for _, v, _ in stated}) > 1:
+        (n1, v1, w1), (n2, v2, w2) = stated[0], stated[1]
+        raise InputError(f"the {n1} states sex {v1.lower()} but the {n2} ({w2}) states {v2.lower()}; "
+                         f"give --sex male or --sex female to decide", w1)
+    if stated:
+        name, value, _ = stated[0]
+        return StatedSex(value, "phenopacket" if name == "phenopacket" else "ped", [])
+    return StatedSex(None, "unknown", [])
 
 
 # ---------------------------------------------------------------------------
@@ -416,10 +562,40 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
     if not alleles:
         return GenotypeAssessment("no qualifying finding", notes=notes, excluded_ids=excluded)
 
+    # A male has one copy of chrX outside the PARs: a call with no reference allele there is
+    # hemizygous, a heterozygous one is a quality or sex problem and is never counted as
+    # hemizygous; PAR calls are diploid (Mendelian genetics, common practice).
+    male_hemi: list[tuple[Finding, Call]] = []
+    male_par: list[tuple[Finding, Call]] = []
+    if sex_n == "MALE":
+        for f, c in alleles:
+            if not is_x_nonpar(f.variant, build):
+                male_par.append((f, c))
+            elif male_heterozygous_x(c, f.variant, sex_n, build):
+                notes.append(f"{f.id} is called {_gt(c)} in a male on chrX outside the PARs (allele balance "
+                             f"{_fmt_ab(c)}): not counted as hemizygous - check the stated sex, sample "
+                             f"contamination, XXY or a mapping artefact")
+            else:
+                male_hemi.append((f, c))
+    for f, c in alleles:
+        expected_one = sex_n != "FEMALE" and is_x_nonpar(f.variant, build)  # unknown sex: may be male
+        if len(c.gt) == 1 and not expected_one:
+            notes.append(f"{f.id} is a haploid call ({_gt(c)}) where two copies are expected: a caller or "
+                         f"copy-number problem to review; counted as one allele, never as homozygous")
+
     options: list[GenotypeAssessment] = []
     for mode in modes:
         if mode in ("XLR", "XLD") and sex_n == "MALE":
-            opt = _hemizygous(alleles, mode, build, notes_prefix=[])
+            if male_hemi:
+                opt = _hemizygous(male_hemi, mode, proband, mother, build, min_dp, min_gq)
+            elif male_par and mode == "XLR":
+                opt = _recessive(gene, male_par, mode, proband, mother, father, build, context, min_dp, min_gq)
+                opt.notes.insert(0, "pseudoautosomal call(s) in a male: two copies, assessed as diploid")
+            elif male_par:
+                opt = _dominant(male_par, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
+                opt.notes.insert(0, "pseudoautosomal call(s) in a male: two copies, assessed as diploid")
+            else:
+                opt = GenotypeAssessment("no qualifying finding", mode=mode)
         elif mode in ("AR",) or (mode == "XLR" and sex_n != "MALE"):
             opt = _recessive(gene, alleles, mode, proband, mother, father, build, context, min_dp, min_gq)
             if mode == "XLR" and opt.fit == "single heterozygous in a recessive gene":
@@ -474,23 +650,25 @@ def _strength(fs: Iterable[Finding]) -> tuple[int, int]:
     return s, c
 
 
-def _hemizygous(alleles, mode, build, notes_prefix) -> GenotypeAssessment:
-    notes = list(notes_prefix)
-    hemi = [(f, c) for f, c in alleles if is_x_nonpar(f.variant, build)]
-    if not hemi:
-        return GenotypeAssessment("no qualifying finding", mode=mode,
-                                  notes=["qualifying calls lie in a pseudoautosomal region, not hemizygous"])
-    hemi.sort(key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
+def _hemizygous(alleles, mode, proband, mother, build, min_dp, min_gq) -> GenotypeAssessment:
+    """Male, chrX outside the PARs: ``alleles`` are single-copy calls (1/1 or haploid 1). One
+    allele is enough in both X-linked recessive and X-linked dominant disease."""
+    notes: list[str] = []
+    hemi = sorted(alleles, key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
     f, c = hemi[0]
-    if c.zygosity == "heterozygous" or (len(c.gt) >= 2 and c.alt_copies == 1):
-        ab = c.allele_balance
-        hint = ("allele balance " + _fmt_ab(c) + (" looks heterozygous: check for sample contamination, "
-                "XXY or a mapping artefact" if ab is not None and ab < 0.8 else " is consistent with one copy"))
-        notes.append(f"{f.id} is called {_gt(c)} in a male on chrX outside the PARs; treated as hemizygous "
-                     f"({hint})")
+    de_novo_ids = []
+    if mother is not None:
+        v, why = de_novo_evidence(f, proband, mother, None, min_dp, min_gq, "MALE", build)
+        if v:
+            de_novo_ids.append(f.id)
+            notes.append(f"{f.id} de novo: {why}")
+        elif v is False:
+            notes.append(f"{f.id} not de novo: {why}")
+    if mode == "XLD":
+        notes.append(f"{f.id} hemizygous in a male in an X-linked dominant gene: one allele is sufficient")
     s, k = _strength([f])
     return GenotypeAssessment("hemizygous", phase="", qualifying_ids=[f.id], notes=notes, mode=mode,
-                              strong_alleles=s, candidate_alleles=k)
+                              strong_alleles=s, candidate_alleles=k, de_novo_ids=de_novo_ids)
 
 
 def _dominant(alleles, mode, proband, mother, father, sex_n, build, min_dp, min_gq) -> GenotypeAssessment:

@@ -11,7 +11,7 @@ PED is the plain six-column pedigree format used by linkage and association tool
 Columns are separated by tabs or spaces; blank lines and lines starting with ``#`` are
 skipped. Anything else (a wrong column count, a parent id that is not in the file, a
 duplicate individual, a bad sex or phenotype code, a father recorded as female or a
-mother as male, a person who is their own parent) is an :class:`InputError` naming the
+mother as male, a person who is their own parent or ancestor) is an :class:`InputError` naming the
 file and line.
 """
 from __future__ import annotations
@@ -136,7 +136,43 @@ def read_ped(path: str | Path) -> Pedigree:
                 raise InputError(
                     f"{pid!r} is the {role} of {p.id!r} but is recorded as {bad_sex.lower()} "
                     f"on line {parent.line}", path, p.line)
+    cycle = _find_cycle(people)
+    if cycle:
+        first = min((people[i] for i in cycle[:-1]), key=lambda q: q.line)
+        raise InputError(f"pedigree cycle: {' -> '.join(repr(i) for i in cycle)} (each is a parent of the "
+                         f"next; a person cannot be their own ancestor)", path, first.line)
     return Pedigree(people, path)
+
+
+def _find_cycle(people: dict[str, Person]) -> Optional[list[str]]:
+    """A parent-to-child loop as a list of ids [a, b, ..., a] (each a parent of the next), or None."""
+    state: dict[str, int] = {}  # 1 on the current path, 2 done
+    for start in people:
+        if state.get(start):
+            continue
+        stack = [(start, iter(_parents_of(people[start])))]
+        path = [start]
+        state[start] = 1
+        while stack:
+            node, it = stack[-1]
+            nxt = next(it, None)
+            if nxt is None:
+                state[node] = 2
+                stack.pop()
+                path.pop()
+                continue
+            if state.get(nxt) == 1:  # nxt is an ancestor of itself through this path
+                loop = path[path.index(nxt):] + [nxt]
+                return list(reversed(loop))
+            if not state.get(nxt):
+                state[nxt] = 1
+                path.append(nxt)
+                stack.append((nxt, iter(_parents_of(people[nxt]))))
+    return None
+
+
+def _parents_of(p: Person) -> list[str]:
+    return [x for x in (p.father, p.mother) if x is not None]
 
 
 def trio_from_ped(ped: Pedigree, proband: str, vcf_samples: Iterable[str]) -> Trio:

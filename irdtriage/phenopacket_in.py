@@ -175,3 +175,32 @@ def profile_from_terms(
     ont = get_ontology()
     labels = {t: ont.get_hpo_object(t).name for t in present + exc}
     return PhenotypeProfile(present=tuple(present), excluded=tuple(exc), sex=sex, source="--hpo", labels=labels)
+
+
+def check_subject(subject: Optional[str], path: Optional[str], sample: str, vcf_samples: Iterable[str],
+                  ped_ids: Iterable[str] = ()) -> Optional[str]:
+    """Is the phenopacket about the person being triaged?
+
+    Raises :class:`InputError` when its subject id is another sample of the VCF or another
+    person of the PED file (the phenotype of the wrong person); returns a warning naming both
+    ids when the subject id matches nobody (laboratory and clinical ids often differ); None
+    when it names ``sample`` or the phenopacket gives no subject id.
+    """
+    if not subject or subject == sample:
+        return None
+    in_vcf = subject in set(vcf_samples)
+    in_ped = subject in set(ped_ids)
+    path = str(path) if path else None
+    if in_vcf or in_ped:
+        line = None
+        if path:
+            try:
+                text = Path(path).read_text(encoding="utf-8")
+                line = _line_of(text, f'"{subject}"')
+            except (OSError, UnicodeDecodeError):
+                line = None
+        where = " and ".join(w for w, ok in (("the VCF", in_vcf), ("the PED file", in_ped)) if ok)
+        raise InputError(f"the phenopacket's subject {subject!r} is another person in {where} than the sample "
+                         f"being triaged ({sample!r}): wrong phenopacket, or give --sample {subject}", path, line)
+    return (f"the phenopacket's subject id {subject!r} matches no sample in the VCF or PED file; its phenotype "
+            f"is used for the triaged sample {sample!r} - check that both ids are the same person")

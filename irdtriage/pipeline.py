@@ -88,7 +88,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     # 2. phenotype input ------------------------------------------------------------
     profile = _phenotype_profile(opts)
-    stated_sex = normalise_sex(opts.sex) if opts.sex is not None else profile.sex
+    explicit_sex = normalise_sex(opts.sex) if opts.sex is not None else None
 
     # 3. family ---------------------------------------------------------------------
     pedigree = None
@@ -117,13 +117,20 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     warnings.extend(intake.warnings)
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
-    if stated_sex is None and ped_sex is not None:
-        stated_sex = ped_sex
-        sex_source = "ped"
-    else:
-        sex_source = "stated" if opts.sex is not None else ("phenopacket" if profile.sex else "unknown")
+    if opts.phenopacket:
+        from .phenopacket_in import check_subject
 
-    from .genotype import infer_sex
+        w = check_subject(profile.subject_id, opts.phenopacket, proband, intake.samples,
+                          pedigree.individuals if pedigree is not None else ())
+        if w:
+            warnings.append(w)
+    from .genotype import infer_sex, male_heterozygous_x_warning, settle_stated_sex, settle_zygosity
+
+    ped_person = pedigree.individuals.get(proband) if pedigree is not None else None
+    settled = settle_stated_sex(explicit_sex, explicit_sex is not None, profile.sex, opts.phenopacket,
+                                ped_sex, opts.ped, ped_person.line if ped_person is not None else None)
+    stated_sex, sex_source = settled.sex, settled.source
+    warnings.extend(settled.warnings)
 
     sex_inf = infer_sex(intake.variants, proband, stated=stated_sex, build=intake.build)
     if getattr(sex_inf, "warning", None):
@@ -131,6 +138,12 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     sex = stated_sex or sex_inf.sex
     if stated_sex is None and sex_inf.sex is not None:
         sex_source = "inferred"
+    # Allelic state follows the settled sex: male chrX (outside the PARs) / chrY calls are
+    # hemizygous, chrM calls homoplasmic or heteroplasmic (see genotype.allelic_state).
+    sexes = {sid: p.sex for sid, p in (pedigree.individuals.items() if pedigree is not None else ())
+             if sid in intake.samples and sid != proband}
+    sexes[proband] = sex
+    settle_zygosity(intake.variants, sexes, intake.build)
 
     # 5. findings -------------------------------------------------------------------
     layouts = intake.header_info.get("annotation_layouts", {})
@@ -236,6 +249,15 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         findings = kept
     for i, f in enumerate(findings, 1):
         f.id = f"F{i}"
+    w = male_heterozygous_x_warning(findings, sexes, intake.build)
+    if w:
+        warnings.append(w)
+    if curated:
+        from .curated import unmatched_warning
+
+        w = unmatched_warning(curated, {f.variant.key for f in findings}, opts.curated_path)
+        if w:
+            warnings.append(w)
 
     # 9-10. family criteria, ACMG pass 2 -------------------------------------------
     from .family_criteria import family_criteria
@@ -267,6 +289,9 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                               other_genes_explaining=[g for g in complete if g != symbol])
         for f in gene_findings:
             classify(f, pheno_criteria(f) + list(fam.get(f.id, [])))
+    from .family_criteria import note_final_partner_classes
+
+    note_final_partner_classes(findings)
 
     # 11. genotype fit per gene -----------------------------------------------------
     from .rank import assign_interpretation_status, case_call, rank_hypotheses

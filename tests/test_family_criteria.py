@@ -212,3 +212,50 @@ def test_pm3_common_partner_scores_zero():
     _with(b, "BS1")
     r = crit(family_criteria(gene("ABCA4"), [a, b], "KID", None, mother="MUM", father="DAD"), "A", "PM3")
     assert r.met is False and r.evidence["points"] == 0.0 and "no second rare allele" in r.reason
+
+
+def test_pm3_reason_names_the_partner_class_on_its_own_evidence_and_its_final_class():
+    # ClinGen SVI PM3 v1.0: the partner's class is taken independently of the allele under review
+    # (here: before family criteria), so the points follow that class (trans + VUS = 0.25); the
+    # reason must still say what the partner's final class is when the second pass changed it.
+    from irdtriage.family_criteria import note_final_partner_classes
+
+    a, b = trans_pair("Likely pathogenic")
+    r = crit(family_criteria(gene("ABCA4"), [a, b], "KID", None, mother="MUM", father="DAD"), "A", "PM3")
+    a.criteria = [r]
+    assert r.evidence["points"] == 0.5
+    assert "pass-1" not in r.reason
+    assert "B (classified Likely pathogenic on its own evidence, before family criteria)" in r.reason
+    assert note_final_partner_classes([a, b]) == 0  # same final class: nothing to add
+    assert "final class" not in r.reason
+
+    a, b = trans_pair("Uncertain significance")
+    r = crit(family_criteria(gene("ABCA4"), [a, b], "KID", None, mother="MUM", father="DAD"), "A", "PM3")
+    a.criteria = [r]
+    assert r.evidence["points"] == 0.25 and "pass-1" not in r.reason
+    b.classification.classification = "Likely pathogenic"  # the partner's class after the second pass
+    assert note_final_partner_classes([a, b]) == 1
+    assert ("classified Uncertain significance on its own evidence, before family criteria; its final class "
+            "is Likely pathogenic") in r.reason
+    assert r.evidence["points"] == 0.25 and r.evidence["partner_final_class"] == "Likely pathogenic"
+    assert note_final_partner_classes([a, b]) == 0  # idempotent
+
+
+def test_own_benign_class_reason_has_no_internal_jargon():
+    f = finding("H", 100, [call("KID", (1, 1))], cls="Likely benign")
+    r = crit(family_criteria(gene("ABCA4"), [f], "KID", None), "H", "PM3")
+    assert "pass-1" not in r.reason and "on its own evidence" in r.reason
+
+
+def test_male_heterozygous_x_call_gets_no_de_novo_or_pm3_points():
+    # A 0/1 call in a male on chrX outside the PARs is a quality or sex problem (common practice):
+    # PS2/PM6 and PM3 are not evaluable for it.
+    f = trio_finding(kid=(0, 1), mum=(0, 0), dad=(0, 0), chrom="chrX", pos=38_300_000)
+    res = family_criteria(gene("RPGR", ("XLR",), "X"), [f], "KID", "MALE", mother="MUM", father="DAD",
+                          build="GRCh38")
+    for code in ("PS2", "PM6", "PM3"):
+        assert crit(res, "D", code).met is None and "heterozygous call in a male" in crit(res, "D", code).reason
+    f = trio_finding(kid=(1,), mum=(0, 0), dad=(0,), chrom="chrX", pos=38_300_000)
+    res = family_criteria(gene("RPGR", ("XLR",), "X"), [f], "KID", "MALE", mother="MUM", father="DAD",
+                          build="GRCh38")
+    assert crit(res, "D", "PM6").met is True

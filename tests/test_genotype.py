@@ -226,14 +226,126 @@ def test_homozygous_possible_deletion_rules():
 
 
 def test_x_linked_male_hemizygous_and_female_carrier():
-    f = finding("R", 38_300_000, [call("KID", (0, 1), ad=(2, 28))], gene="RPGR", chrom="chrX")
-    r = assess_gene(gene("RPGR", ("XLR",), "X"), [f], "KID", "MALE", build="GRCh38")
-    assert r.fit == "hemizygous" and any("treated as hemizygous" in n for n in r.notes)
+    # Mendelian genetics (common practice): a 46,XY male has one chrX outside the PARs, so a call
+    # without a reference allele (1/1 or haploid 1) is hemizygous; a heterozygous 0/1 call there
+    # is a genotyping or sex problem and is never counted as hemizygous.
+    for gt in ((1, 1), (1,)):
+        f = finding("R", 38_300_000, [call("KID", gt)], gene="RPGR", chrom="chrX")
+        r = assess_gene(gene("RPGR", ("XLR",), "X"), [f], "KID", "MALE", build="GRCh38")
+        assert r.fit == "hemizygous" and r.qualifying_ids == ["R"] and r.strong_alleles == 1
+    for ad in ((2, 28), (15, 15)):
+        f = finding("R", 38_300_000, [call("KID", (0, 1), ad=ad)], gene="RPGR", chrom="chrX")
+        r = assess_gene(gene("RPGR", ("XLR",), "X"), [f], "KID", "MALE", build="GRCh38")
+        assert r.fit != "hemizygous" and r.fit == "no qualifying finding"
+        assert any("R is called 0/1 in a male" in n and "not counted as hemizygous" in n for n in r.notes)
     f2 = finding("R", 38_300_000, [call("KID", (0, 1), ad=(15, 15))], gene="RPGR", chrom="chrX")
-    r = assess_gene(gene("RPGR", ("XLR",), "X"), [f2], "KID", "MALE", build="GRCh38")
-    assert r.fit == "hemizygous" and any("looks heterozygous" in n for n in r.notes)
     r = assess_gene(gene("RPGR", ("XLR",), "X"), [f2], "KID", "FEMALE", build="GRCh38")
     assert r.fit == "single heterozygous in a recessive gene" and r.manifesting_carrier_possible
+
+
+def test_male_heterozygous_x_call_does_not_hide_a_hemizygous_one():
+    # Two calls in one X-linked gene of a male: the 0/1 one is set aside, the 1/1 one is the fit.
+    het = finding("H", 38_290_000, [call("KID", (0, 1))], gene="RPGR", chrom="chrX")
+    hemi = finding("M", 38_300_000, [call("KID", (1, 1))], gene="RPGR", chrom="chrX",
+                   cls="Uncertain significance")
+    r = assess_gene(gene("RPGR", ("XLR",), "X"), [het, hemi], "KID", "MALE", build="GRCh38")
+    assert r.fit == "hemizygous" and r.qualifying_ids == ["M"] and r.candidate_alleles == 1
+
+
+def _xgene(symbol, inheritance):
+    from dataclasses import replace
+
+    g = gene(symbol, inheritance, "X")
+    return replace(g, grch38=Span("X", 1, 156_030_895))
+
+
+def test_x_linked_dominant_in_male_and_female():
+    # X-linked dominant (common practice): one allele is sufficient in either sex; in a male the
+    # allele is hemizygous, in a female heterozygous. De novo in a female needs both parents
+    # reference; in a son only the mother (his chrX comes from her).
+    xld = _xgene("XLDGENE", ("XLD",))
+    male = trio_finding(kid=(1,), mum=(0, 0), dad=None, chrom="chrX", pos=38_300_000)
+    r = assess_gene(xld, [male], "KID", "MALE", mother="MUM", father=None, build="GRCh38")
+    assert r.fit == "hemizygous" and r.mode == "XLD" and r.qualifying_ids == ["D"]
+    assert r.de_novo_ids == ["D"]  # mother confidently reference: de novo without the father
+    assert any("one allele is sufficient" in n for n in r.notes)
+    inherited = trio_finding(kid=(1, 1), mum=(0, 1), dad=(0, 0), chrom="chrX", pos=38_300_000)
+    r = assess_gene(xld, [inherited], "KID", "MALE", mother="MUM", father="DAD", build="GRCh38")
+    assert r.fit == "hemizygous" and r.de_novo_ids == []
+    female = trio_finding(kid=(0, 1), mum=(0, 0), dad=(0, 0), chrom="chrX", pos=38_300_000)
+    r = assess_gene(xld, [female], "KID", "FEMALE", mother="MUM", father="DAD", build="GRCh38")
+    assert r.fit == "de novo" and r.mode == "XLD"
+    from_father = trio_finding(kid=(0, 1), mum=(0, 0), dad=(1,), chrom="chrX", pos=38_300_000)
+    r = assess_gene(xld, [from_father], "KID", "FEMALE", mother="MUM", father="DAD", build="GRCh38")
+    assert r.fit == "heterozygous in a dominant gene"
+    # a male's 0/1 call in an XLD gene is not a complete fit either
+    het = trio_finding(kid=(0, 1), mum=(0, 0), dad=None, chrom="chrX", pos=38_300_000)
+    assert assess_gene(xld, [het], "KID", "MALE", mother="MUM", build="GRCh38").fit == "no qualifying finding"
+
+
+def test_pseudoautosomal_calls_in_a_male_are_diploid():
+    # GRC PAR1 (GRCh38 X:10,001-2,781,479): two copies in a male, so no hemizygosity there.
+    xlr = _xgene("PARGENE", ("XLR",))
+    one = finding("P", 1_500_000, [call("KID", (0, 1))], gene="PARGENE", chrom="chrX")
+    r = assess_gene(xlr, [one], "KID", "MALE", build="GRCh38")
+    assert r.fit == "single heterozygous in a recessive gene" and r.fit != "hemizygous"
+    assert any("pseudoautosomal" in n for n in r.notes)
+    hom = finding("Q", 1_600_000, [call("KID", (1, 1))], gene="PARGENE", chrom="chrX")
+    assert assess_gene(xlr, [hom], "KID", "MALE", build="GRCh38").fit == "homozygous"
+    a, b = pair(((0, 1),), ((0, 1),), mum_a=(0, 1), mum_b=(0, 0), dad_a=(0, 0), dad_b=(0, 1),
+                chrom="chrX", gene="PARGENE")
+    a.variant.pos, b.variant.pos = 1_500_000, 1_600_000
+    r = assess_gene(xlr, [a, b], "KID", "MALE", mother="MUM", father="DAD", build="GRCh38")
+    assert r.fit == "biallelic in trans"
+    # GRCh37 PAR1 ends at 2,699,520 (UCSC/GRC), GRCh38 at 2,781,479: 2,750,000 is PAR only in GRCh38
+    edge = finding("E", 2_750_000, [call("KID", (0, 1))], gene="PARGENE", chrom="chrX")
+    assert assess_gene(xlr, [edge], "KID", "MALE", build="GRCh38").fit == "single heterozygous in a recessive gene"
+    assert assess_gene(xlr, [edge], "KID", "MALE", build="GRCh37").fit == "no qualifying finding"
+
+
+def test_haploid_calls_where_two_copies_are_expected_are_never_homozygous():
+    # A one-allele GT on an autosome, or on chrX of a female, is one allele (a caller or copy-number
+    # question), never a homozygous genotype (common practice).
+    auto = finding("A", 1000, [call("KID", (1,))])
+    r = assess_gene(gene("ABCA4"), [auto], "KID", "FEMALE")
+    assert r.fit == "single heterozygous in a recessive gene"
+    assert any("haploid call" in n for n in r.notes)
+    xf = finding("X", 38_300_000, [call("KID", (1,))], gene="RPGR", chrom="chrX")
+    r = assess_gene(gene("RPGR", ("XLR",), "X"), [xf], "KID", "FEMALE", build="GRCh38")
+    assert r.fit == "single heterozygous in a recessive gene" and any("haploid call" in n for n in r.notes)
+
+
+def test_phase_when_one_parent_carries_both_alleles_and_the_other_one():
+    # Mendelian (common practice): mother 0/1 at A and B, father 0/1 at A only. The child got A
+    # from the father and B from the mother (trans) OR both from the mother's cis haplotype and
+    # the father's reference allele: both are possible, so phase is not resolved.
+    a, b = pair(((0, 1),), ((0, 1),), mum_a=(0, 1), mum_b=(0, 1), dad_a=(0, 1), dad_b=(0, 0))
+    r = phase_between(a, b, "KID", "MUM", "DAD")
+    assert r.phase == "unknown"
+    a, b = pair(((0, 1),), ((0, 1),), mum_a=(0, 1), mum_b=(0, 0), dad_a=(0, 1), dad_b=(0, 1))
+    assert phase_between(a, b, "KID", "MUM", "DAD").phase == "unknown"
+    # father carries both, mother neither: in cis
+    a, b = pair(((0, 1),), ((0, 1),), mum_a=(0, 0), mum_b=(0, 0), dad_a=(0, 1), dad_b=(0, 1))
+    r = phase_between(a, b, "KID", "MUM", "DAD")
+    assert r.phase == "cis" and "father carries both" in r.how
+    r = assess_gene(gene("ABCA4"), [a, b], "KID", "FEMALE", mother="MUM", father="DAD")
+    assert r.fit == "single heterozygous in a recessive gene" and r.phase == "in cis"
+
+
+def test_de_novo_on_x_in_a_daughter_needs_both_parents():
+    # common practice: a daughter has one chrX from each parent
+    f = trio_finding(kid=(0, 1), mum=(0, 0), dad=(0, 0), chrom="chrX", pos=38_300_000)
+    assert is_de_novo(f, "KID", "MUM", "DAD", proband_sex="FEMALE", build="GRCh38") is True
+    f = trio_finding(kid=(0, 1), mum=(0, 0), dad=(1,), chrom="chrX", pos=38_300_000)
+    assert is_de_novo(f, "KID", "MUM", "DAD", proband_sex="FEMALE", build="GRCh38") is False
+    # a son: the father's chrX call does not matter, the mother's does
+    f = trio_finding(kid=(1,), mum=(0, 0), dad=(1,), chrom="chrX", pos=38_300_000)
+    assert is_de_novo(f, "KID", "MUM", "DAD", proband_sex="MALE", build="GRCh38") is True
+    f = trio_finding(kid=(1,), mum=(0, 1), dad=(0,), chrom="chrX", pos=38_300_000)
+    assert is_de_novo(f, "KID", "MUM", "DAD", proband_sex="MALE", build="GRCh38") is False
+    # inside PAR1 a son has a paternal copy too: both parents are needed
+    f = trio_finding(kid=(0, 1), mum=(0, 0), dad=None, chrom="chrX", pos=1_500_000)
+    assert is_de_novo(f, "KID", "MUM", None, proband_sex="MALE", build="GRCh38") is None
 
 
 def test_dominant_and_de_novo_and_multi_mode_choice():

@@ -78,3 +78,43 @@ def test_empty_and_missing_ped(tmp_path):
         read_ped(write(tmp_path, "# only a comment\n\n"))
     with pytest.raises(InputError, match="not found"):
         read_ped(tmp_path / "absent.ped")
+
+
+@pytest.mark.parametrize("rows, line, needle", [
+    # two people each listed as the other's father (both male, same family)
+    ("F A B 0 1 2\nF B A 0 1 1\n", 1, "'A' -> 'B' -> 'A'"),
+    # a three-generation loop: A's mother is C, C's father is B, B's father is A
+    ("F A 0 C 1 2\nF B A 0 1 1\nF C B 0 2 1\n", 1, "cannot be their own ancestor"),
+    # the loop sits below a founder-rooted family: the error names the first line of the loop
+    ("F P 0 0 1 1\nF Q 0 0 2 1\nF X Y 0 1 2\nF Y X 0 1 1\n", 3, "'X' -> 'Y' -> 'X'"),
+])
+def test_pedigree_cycle_is_an_input_error(tmp_path, rows, line, needle):
+    # PED format: parents are earlier generations; nobody can be their own ancestor.
+    p = write(tmp_path, rows)
+    with pytest.raises(InputError) as e:
+        read_ped(p)
+    assert e.value.path == str(p) and e.value.line == line
+    assert needle in e.value.problem and "\n" not in str(e.value)
+
+
+def test_pedigree_cycle_through_the_cli_is_one_line(tmp_path):
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    vcf = tmp_path / "s.vcf"
+    vcf.write_text("##fileformat=VCFv4.2\n##contig=<ID=chr1,length=248956422>\n"
+                   '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">\n'
+                   "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tA\tB\n"
+                   "chr1\t68444600\t.\tG\tA\t50\tPASS\t.\tGT\t0/1\t0/1\n")
+    ped = write(tmp_path, "F A B 0 1 2\nF B A 0 1 1\n")
+    out = tmp_path / "out"
+    r = subprocess.run([sys.executable, "-m", "irdtriage", "triage", str(vcf), "--sample", "A", "--ped", str(ped),
+                        "--out", str(out)], capture_output=True, text=True, cwd=root, timeout=600,
+                       env=dict(os.environ, NO_COLOR="1", PYTHONPATH=str(root)))
+    assert r.returncode == 2
+    lines = [ln for ln in r.stderr.splitlines() if ln.strip()]
+    assert len(lines) == 1 and f"{ped}:1" in lines[0] and "pedigree cycle" in lines[0]
+    assert not out.exists() or not any(out.iterdir())
