@@ -314,10 +314,12 @@ def _add_resources(md: dict, prefixes, result: dict, hp_version: Optional[str] =
 
 
 def _hpo_version() -> Optional[str]:
+    """The release of the HPO loaded in this process (never loaded just for this), else None."""
     try:
-        from irdtriage.phenotype import get_ontology
+        from irdtriage import phenotype
 
-        return str(get_ontology().version()) or None
+        onto = phenotype._ONTOLOGY
+        return (str(onto.version()) or None) if onto is not None else None
     except Exception:  # the version is informative; "unknown" when hpo3 cannot say
         return None
 
