@@ -53,7 +53,29 @@ def cascade_dict(step: Optional[models.CascadeStep]) -> Optional[dict[str, Any]]
             "text": step.text, "breaks": step.breaks}
 
 
-def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> dict[str, Any]:
+def allele_depths(call: Optional[models.Call]) -> Optional[list[Optional[int]]]:
+    """[reference depth, this allele's depth] from the call's AD, or None when AD is absent."""
+    if call is None or (call.ad_ref is None and call.ad_alt is None):
+        return None
+    return [call.ad_ref, call.ad_alt]
+
+
+def protein_accession(annotation: models.Annotation, gene: Optional[models.Gene]) -> Optional[str]:
+    """The protein reference that pairs with the annotation's transcript, so HGVS c. and p. are
+    written on one transcript/protein pair: the annotation's own ``ENSP`` (VEP CSQ field) for an
+    Ensembl transcript; the gene's MANE Select RefSeq protein when the transcript is the gene's
+    MANE Select RefSeq transcript (same version). None when no pair is known."""
+    tx = annotation.transcript or ""
+    ensp = str(annotation.extra.get("ENSP") or "")
+    if tx.startswith("ENST") and ensp.startswith("ENSP"):
+        return ensp
+    if gene is not None and tx.startswith("NM_") and tx == gene.refseq_transcript and gene.refseq_protein:
+        return gene.refseq_protein
+    return None
+
+
+def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str],
+                 gene: Optional[models.Gene] = None) -> dict[str, Any]:
     v = f.variant
     call = v.calls.get(proband)
     c = f.classification
@@ -62,7 +84,7 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
         rc = v.calls.get(sid)
         if rc is not None:
             family[sid] = {"role": role, "genotype": genotype_string(rc), "zygosity": rc.zygosity,
-                           "dp": rc.dp, "gq": rc.gq}
+                           "dp": rc.dp, "gq": rc.gq, "ad": allele_depths(rc)}
     return {
         "id": f.id,
         "chrom": v.chrom,
@@ -76,6 +98,7 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
         "qual": v.qual,
         "gene": f.gene,
         "transcript": f.annotation.transcript,
+        "protein_accession": protein_accession(f.annotation, gene),
         "is_mane": f.annotation.is_mane,
         "hgvs_c": f.annotation.hgvs_c,
         "hgvs_p": f.annotation.hgvs_p,
@@ -90,6 +113,7 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str]) -> 
         "phase_set": call.phase_set if call else None,
         "dp": call.dp if call else None,
         "gq": call.gq if call else None,
+        "ad": allele_depths(call),
         "allele_balance": _round(call.allele_balance) if call else None,
         "filters": list(v.filters) or ["PASS"],
         "quality_flags": list(f.quality_flags),
@@ -184,6 +208,7 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel,
         "name": gene.name,
         "transcript": gene.refseq_transcript,
         "refseq_protein": gene.refseq_protein,
+        "ensembl_transcript": gene.ensembl_transcript or None,
         "protein": _protein(h),
         "inheritance": list(gene.inheritance),
         "mechanisms": list(gene.mechanisms),
@@ -215,6 +240,23 @@ def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
     return None
 
 
+def hpo_labels(term_ids) -> dict[str, str]:
+    """HPO term names from the ontology bundled with hpo3 (offline); ids it lacks are left out."""
+    ids = [t for t in dict.fromkeys(term_ids or ()) if t]
+    if not ids:
+        return {}
+    from .phenotype import get_ontology
+
+    onto = get_ontology()
+    out = {}
+    for t in ids:
+        try:
+            out[t] = onto.get_hpo_object(t).name
+        except (KeyError, ValueError, RuntimeError, AttributeError):
+            continue
+    return out
+
+
 def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,
                  mother, father, affected, profile, retinal, findings, ranked, call, warnings,
                  counts_extra=None, phenotype_ranks=None) -> dict[str, Any]:
@@ -228,14 +270,9 @@ def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex,
         inputs.append({"role": "scores", "path": str(p), "sha256": sha256_file(p)})
 
     relatives = {k: v for k, v in (("mother", mother), ("father", father)) if v}
-    labels = dict(profile.labels)
-    if profile.present or profile.excluded:
-        try:
-            from .phenotype import term_labels
-
-            labels.update(term_labels(list(profile.present) + list(profile.excluded)))
-        except Exception:  # labels are cosmetic; never fail a run on them
-            pass
+    labels = {k: v for k, v in profile.labels.items() if v and v != k}
+    missing = [t for t in list(profile.present) + list(profile.excluded) if t not in labels]
+    labels.update(hpo_labels(missing))
     ordered_findings = [f for h in ranked for f in h.findings]
     counts = dict(intake.counts)
     counts.update(counts_extra or {})
@@ -262,7 +299,7 @@ def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex,
         "case": {"status": call.status, "summary": call.summary, "next_steps": list(call.next_steps)},
         "cascade": [cascade_dict(s) for s in panel.cascade.values()],
         "genes": [gene_dict(h, panel, phenotype_ranks) for h in ranked],
-        "findings": [finding_dict(f, proband, relatives) for f in ordered_findings],
+        "findings": [finding_dict(f, proband, relatives, panel.genes.get(f.gene)) for f in ordered_findings],
         "counts": counts,
         "warnings": list(dict.fromkeys(warnings)),
         "cautions": list(CAUTIONS),

@@ -174,3 +174,51 @@ def test_prints_on_a4(tmp_path):
     assert boxes
     for w, h in boxes:
         assert abs(float(w) - 595.28) < 1.5 and abs(float(h) - 841.89) < 1.5
+
+
+def _text_of(result) -> str:
+    # stdlib HTML parser (html.parser) as the reader: the visible text of the page
+    p = _Text()
+    p.feed(render_html(result))
+    return p.text
+
+
+def test_gene_notes_lose_provenance_markers_in_prose():
+    r = json.loads(FIXTURE.read_text())
+    r["genes"][0]["notes"] = [
+        "Recurrent founder allele p.(Tyr51Cys) (from memory).",
+        "Dominant disease by misfolding (class II variants such as p.(Pro23His); from memory).",
+        "GRCh37 span widened from the GENCODE canonical transcript (1-2) to cover the MANE Select transcript.",
+    ]
+    r["genes"][0]["next_steps"] = ["Look for the deep-intronic second allele (from memory)."]
+    text = _text_of(r)
+    assert "from memory" not in text
+    assert "Recurrent founder allele p.(Tyr51Cys)." in text
+    assert "(class II variants such as p.(Pro23His))" in text
+    assert "GRCh37 span widened" not in text  # a curation note, not reader prose
+    assert "Look for the deep-intronic second allele." in text
+    assert r["genes"][0]["notes"][0].endswith("(from memory).")  # the data keeps its provenance
+
+
+def test_genotype_fit_key_is_shown_in_plain_words():
+    r = json.loads(FIXTURE.read_text())
+    r["genes"][0]["genotype_fit"] = "biallelic phase unknown"
+    text = _text_of(r)
+    assert "two alleles, phase not determined" in text
+    assert "biallelic phase unknown" not in text
+
+
+@pytest.mark.parametrize("zygosity, short, full", [
+    ("hemizygous", "hemi", "hemizygous"),
+    ("homoplasmic", "homoplasmic", "homoplasmic (mtDNA)"),
+    ("heteroplasmic", "heteroplasmic", "heteroplasmic (mtDNA)"),
+    ("haploid call", "haploid (review)", "one-allele call where two copies are expected (review)"),
+])
+def test_every_zygosity_has_a_label(zygosity, short, full):
+    from irdtriage.report import html as html_mod
+
+    r = json.loads(FIXTURE.read_text())
+    f = r["findings"][0]
+    f["zygosity"] = zygosity
+    assert f"<td>{short}</td>" in html_mod._compact_rows([f])
+    assert f"{full} (" in _text_of(r)  # finding facts: "<label> (GT)"

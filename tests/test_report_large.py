@@ -167,8 +167,8 @@ def test_tsv_and_vcf_stay_complete(tmp_path):
     r = large_result.build(700, n_genes=30)
     out = write_outputs(r, tmp_path, formats=["tsv", "vcf"])
     rows = list(csv.reader(io.StringIO(out["tsv"].read_text(encoding="utf-8")), delimiter="\t"))
-    assert rows[0][0].startswith("#") and "CAUTION" in rows[0][0]
-    assert [row[0] for row in rows[2:]] == [f["id"] for f in r["findings"]]
+    assert rows[0][0] == "finding_id" and rows[0][-1] == "caution"  # header first (no comment line)
+    assert [row[0] for row in rows[1:]] == [f["id"] for f in r["findings"]]
     with pysam.VariantFile(str(out["vcf"])) as vf:
         ids = [rec.info["IRDT_ID"] for rec in vf]
     assert sorted(ids) == sorted(f["id"] for f in r["findings"])

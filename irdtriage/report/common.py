@@ -117,3 +117,119 @@ def fmt(v: Any, none: str = "—") -> str:
     if isinstance(v, (list, tuple)):
         return ", ".join(str(x) for x in v)
     return str(v)
+
+
+# ---------------------------------------------------------------------------
+# Display wording shared by the writers (the result keeps the keys; readers see these)
+# ---------------------------------------------------------------------------
+# Genotype-fit keys (irdtriage.models.GENOTYPE_FITS, the schema enum) -> plain words for readers.
+GENOTYPE_FIT_LABELS = {
+    "biallelic in trans": "two alleles, on different copies (in trans)",
+    "biallelic phase unknown": "two alleles, phase not determined",
+    "homozygous": "homozygous",
+    "hemizygous": "hemizygous",
+    "heterozygous in a dominant gene": "one allele in a dominant gene",
+    "de novo": "de novo (absent in both parents)",
+    "single heterozygous in a recessive gene": "one allele only in a recessive gene",
+    "no qualifying finding": "no qualifying finding",
+}
+
+
+def genotype_fit_label(key: Optional[str]) -> str:
+    """Reader-facing label of a genotype-fit key; an unknown key is shown as it is."""
+    if not key:
+        return "—"
+    return GENOTYPE_FIT_LABELS.get(key, str(key))
+
+
+# Allelic states (irdtriage.models.ZYGOSITIES): full words for prose, short ones for narrow columns.
+ZYGOSITY_LABELS = {
+    "heterozygous": "heterozygous", "homozygous": "homozygous", "hemizygous": "hemizygous",
+    "homoplasmic": "homoplasmic (mtDNA)", "heteroplasmic": "heteroplasmic (mtDNA)",
+    "haploid call": "one-allele call where two copies are expected (review)",
+    "reference": "reference", "no call": "no call",
+}
+ZYGOSITY_SHORT = {
+    "heterozygous": "het", "homozygous": "hom", "hemizygous": "hemi",
+    "homoplasmic": "homoplasmic", "heteroplasmic": "heteroplasmic", "haploid call": "haploid (review)",
+    "reference": "ref", "no call": "no call",
+}
+
+
+def zygosity_label(z: Optional[str], short: bool = False) -> str:
+    if not z:
+        return "—"
+    return (ZYGOSITY_SHORT if short else ZYGOSITY_LABELS).get(z, str(z))
+
+
+# Provenance markers kept in the curated data (and shown by `irdtriage panel show`) but not in
+# report prose: "(from memory)", "(both from memory)", "...; from memory)", "(common practice)".
+_PROV_WORDS = r"(?:(?:both|all|each)\s+)?(?:from\s+memory|common\s+practice)"
+_PROV_ALONE = re.compile(r"\s*\(\s*" + _PROV_WORDS + r"\s*\)")
+_PROV_TAIL = re.compile(r"\s*[;,]\s*" + _PROV_WORDS + r"\s*(?=\))")
+_PROV_HEAD = re.compile(r"(?<=\()\s*" + _PROV_WORDS + r"\s*[;:,]\s*")
+_PROV_CLAUSE = re.compile(r",\s*" + _PROV_WORDS + r"(?=\s*[.;)]|\s*$)")
+# Curation notes about how coordinates were derived: useful to curators, not to a report reader.
+_CURATION_NOTE = re.compile(r"^\s*GRCh3[78] span\b")
+
+
+def strip_provenance(text: Optional[str]) -> str:
+    """``text`` without provenance markers ("from memory", "common practice"), spacing tidied."""
+    if not text:
+        return ""
+    t = _PROV_ALONE.sub("", str(text))
+    t = _PROV_TAIL.sub("", t)
+    t = _PROV_HEAD.sub("", t)
+    t = _PROV_CLAUSE.sub("", t)
+    t = re.sub(r"\s+([.,;:)])", r"\1", t)
+    return " ".join(t.split())
+
+
+def prose_notes(notes: Optional[Iterable[str]]) -> list[str]:
+    """Curated gene notes as report prose: provenance markers stripped, curation-only notes dropped.
+
+    The one place every writer (HTML, terminal) turns ``genes[].notes`` into reader text; the
+    notes in result.json and ``irdtriage panel show`` keep their provenance."""
+    out = []
+    for n in notes or []:
+        if not n or _CURATION_NOTE.match(str(n)):
+            continue
+        t = strip_provenance(n)
+        if t:
+            out.append(t)
+    return out
+
+
+def _same_family(transcript: str, protein: str) -> bool:
+    return ((transcript.startswith(("NM_", "XM_")) and protein.startswith(("NP_", "XP_")))
+            or (transcript.startswith("ENST") and protein.startswith("ENSP")))
+
+
+def hgvs_pair(finding: dict, gene: Optional[dict] = None) -> tuple[Optional[str], Optional[str]]:
+    """HGVS c. and p. expressions written on one transcript/protein pair, or None for either.
+
+    - The finding's transcript with the protein the annotation paired with it
+      (``protein_accession``: RefSeq NM_ with NP_, Ensembl ENST with ENSP).
+    - The gene's MANE Select Ensembl transcript (same version) without an ENSP: written on the
+      gene's MANE Select RefSeq pair instead (NM_/NP_), since a MANE Select Ensembl and RefSeq
+      transcript pair have the same sequence (MANE project definition; from memory).
+    - The gene's MANE Select RefSeq transcript (same version): its MANE RefSeq protein.
+    - Otherwise c. on the finding's transcript and no p. (never a p. on an unrelated protein).
+    A value that already carries an accession (``NM_x:c.1A>G``) is kept as it is."""
+    g = gene or {}
+    c, p = finding.get("hgvs_c") or None, finding.get("hgvs_p") or None
+    tx = finding.get("transcript") or ""
+    prot = finding.get("protein_accession") or ""
+    mane_nm, mane_np, mane_enst = g.get("transcript") or "", g.get("refseq_protein") or "", g.get("ensembl_transcript") or ""
+    if c and ":" in c:
+        return c, (p if p and ":" in p else None)
+    if not (tx and prot and _same_family(tx, prot)):
+        if tx and tx == mane_enst and mane_nm and mane_np:
+            tx, prot = mane_nm, mane_np
+        elif tx and tx == mane_nm and mane_np:
+            prot = mane_np
+        else:
+            prot = ""
+    c_expr = f"{tx}:{c}" if c and tx else None
+    p_expr = f"{prot}:{p}" if p and prot and (c_expr or not c) else None
+    return c_expr, p_expr

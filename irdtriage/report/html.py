@@ -26,6 +26,10 @@ from .common import (
     findings_by_id,
     fmt,
     gene_findings,
+    genotype_fit_label,
+    prose_notes,
+    strip_provenance,
+    zygosity_label,
 )
 
 DETAIL_GENES = 10
@@ -36,7 +40,6 @@ FINDING_IDS_SHOWN = 6
 KEY_STATUSES = ("CAUSATIVE", "CANDIDATE")
 STATUS_ORDER = {"CAUSATIVE": 0, "CANDIDATE": 1, "CONTRIBUTORY": 2, "UNKNOWN_STATUS": 3, "REJECTED": 4}
 CLASS_RANK = {"Pathogenic": 0, "Likely pathogenic": 1, "Uncertain significance": 2, "Likely benign": 3, "Benign": 4}
-ZYG_SHORT = {"heterozygous": "het", "homozygous": "hom", "hemizygous": "hemi"}
 
 CLASS_ORDER = ("Benign", "Likely benign", "Uncertain significance", "Likely pathogenic", "Pathogenic")
 
@@ -187,7 +190,7 @@ def _genes_table(result: dict) -> str:
         st = g.get("cascade_step") or {}
         rows.append(
             f'<tr><td class="num">{e(g.get("rank"))}</td><td><a href="#gene-{e(g.get("symbol"))}"><b>{e(g.get("symbol"))}</b></a></td>'
-            f'<td>{e("/".join(g.get("inheritance") or []) or "—")}</td><td>{e(g.get("genotype_fit"))}</td>'
+            f'<td>{e("/".join(g.get("inheritance") or []) or "—")}</td><td>{e(genotype_fit_label(g.get("genotype_fit")))}</td>'
             f'<td class="num">{_pheno_cell(pm)}</td>'
             f'<td>{_class_scale(g.get("strongest_class"))}</td><td>{e(_ids(g.get("findings") or []))}{_quality_note(by_id, g)}</td>'
             f'<td>{e(st.get("title") or "—")}</td></tr>')
@@ -255,7 +258,7 @@ def _compact_rows(fs: list[dict], with_gene: bool = True) -> str:
         pos = f"{f.get('chrom')}:{f.get('pos')} {f.get('ref')}>{f.get('alt')}"
         rows.append(f'<tr><td>{e(f.get("id"))}</td>' + (f'<td>{e(f.get("gene"))}</td>' if with_gene else "")
                     + f'<td>{e(hg or "—")}<br><span class="muted small">{e(pos)}</span></td>'
-                    f'<td>{e(ZYG_SHORT.get(f.get("zygosity"), fmt(f.get("zygosity"))))}</td>'
+                    f'<td>{e(zygosity_label(f.get("zygosity"), short=True))}</td>'
                     f'<td>{e(fmt(f.get("classification"), "not classified"))}</td>'
                     f'<td class="crit">{e(criteria_compact(f))}</td><td>{e(fmt(f.get("interpretation_status")))}</td></tr>')
     return ("<table class=\"compact\"><thead><tr><th>Finding</th>" + ("<th>Gene</th>" if with_gene else "")
@@ -304,7 +307,7 @@ def _criteria_table(f: dict) -> str:
 
 def _finding(f: dict) -> str:
     fam = f.get("family") or {}
-    fam_txt = "; ".join(f"{k}{' (' + str(v['role']) + ')' if v.get('role') else ''}: {v.get('genotype')} ({v.get('zygosity')})"
+    fam_txt = "; ".join(f"{k}{' (' + str(v['role']) + ')' if v.get('role') else ''}: {v.get('genotype')} ({zygosity_label(v.get('zygosity'))})"
                         for k, v in fam.items()) or "—"
     o = f.get("original") or {}
     orig = ""
@@ -314,7 +317,7 @@ def _finding(f: dict) -> str:
         ("Position", f"{f.get('chrom')}:{f.get('pos')} {f.get('ref')}>{f.get('alt')}" + (f" — {orig}" if orig else "")),
         ("HGVS", " ".join(x for x in (f.get("transcript") and f"{f['transcript']}:{f.get('hgvs_c') or ''}", f.get("hgvs_p")) if x) or "—"),
         ("Consequence", fmt(f.get("consequence"))), ("Exon / intron", f"{fmt(f.get('exon'))} / {fmt(f.get('intron'))}"),
-        ("Zygosity (GT)", f"{fmt(f.get('zygosity'))} ({fmt(f.get('genotype'))}{', phased' if f.get('phased') else ''})"),
+        ("Zygosity (GT)", f"{zygosity_label(f.get('zygosity'))} ({fmt(f.get('genotype'))}{', phased' if f.get('phased') else ''})"),
         ("Depth / GQ / allele balance", f"{fmt(f.get('dp'))} / {fmt(f.get('gq'))} / {fmt(f.get('allele_balance'))}"),
         ("Filters / quality flags", f"{fmt(f.get('filters'))} / {fmt(f.get('quality_flags'), 'none')}"),
         ("Family", fam_txt),
@@ -339,8 +342,8 @@ def _gene_section(result: dict, g: dict) -> str:
     sym = g.get("symbol")
     parts = [f'<section class="gene" id="gene-{e(sym)}"><h3>{e(g.get("rank"))}. {e(sym)} '
              f'<span class="muted">{e(g.get("hgnc_id") or "")}</span></h3>']
-    parts.append(f'<p>{e(g.get("reason") or "")}</p>')
-    parts.append(f'<p><b>Genotype fit:</b> {e(g.get("genotype_fit"))}'
+    parts.append(f'<p>{e(strip_provenance(g.get("reason")))}</p>')
+    parts.append(f'<p><b>Genotype fit:</b> {e(genotype_fit_label(g.get("genotype_fit")))}'
                  + (f" — phase: {e(g.get('phase'))}" if g.get("phase") else "")
                  + f'. <b>Inheritance:</b> {e("/".join(g.get("inheritance") or []) or "unknown")}.'
                  + (f' <b>Mechanism:</b> {e(", ".join(g["mechanisms"]))}.' if g.get("mechanisms") else "")
@@ -349,9 +352,10 @@ def _gene_section(result: dict, g: dict) -> str:
         parts.append(f'<h4>Where it acts: {e(st.get("title") or st.get("id"))}</h4><div class="explain">'
                      f'<div><b>What the gene does</b>{e(st.get("text") or "No explanation in the panel.")}</div>'
                      f'<div class="breaks"><b>What a defect breaks</b>{e(st.get("breaks") or "Not described in the panel.")}</div></div>')
-    if g.get("notes"):
+    notes = prose_notes(g.get("notes"))
+    if notes:
         parts.append('<h4>Gene notes (curated)</h4><ul class="notes muted">'
-                     + "".join(f"<li>{e(n)}</li>" for n in g["notes"]) + "</ul>")
+                     + "".join(f"<li>{e(n)}</li>" for n in notes) + "</ul>")
     parts.append("<h4>Phenotype match</h4>")
     cal = pm.get("calibrated")
     rk = _pheno_rank(pm)
@@ -378,7 +382,7 @@ def _gene_section(result: dict, g: dict) -> str:
                      "the full criterion tables of these are in result.json and <code>irdtriage explain</code>.</p>"
                      + _compact_rows(rest, with_gene=False))
     if g.get("next_steps"):
-        parts.append("<h4>Next steps for this gene</h4><ul>" + "".join(f"<li>{e(s)}</li>" for s in g["next_steps"]) + "</ul>")
+        parts.append("<h4>Next steps for this gene</h4><ul>" + "".join(f"<li>{e(strip_provenance(s))}</li>" for s in g["next_steps"]) + "</ul>")
     parts.append("</section>")
     return "".join(parts)
 
@@ -398,7 +402,7 @@ def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) ->
     out.append(_caution_box(result))
     out.append(_meta(result) + "</header>")
     out.append(f'<section id="case"><h2>Case call</h2><div class="call"><span class="status {e(status)}">{e(status)}</span>'
-               f"<div>{e(case.get('summary'))}</div></div>")
+               f"<div>{e(strip_provenance(case.get('summary')))}</div></div>")
     if ph.get("retinal_fit"):
         rf = ph["retinal_fit"]
         out.append(f'<p class="muted">Phenotype check: {e(rf.get("summary") or "")}</p>')
@@ -427,7 +431,7 @@ def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) ->
                f'<h4>Present</h4><ul>{terms or "<li>none given</li>"}</ul>'
                + (f"<h4>Excluded</h4><ul>{excl}</ul>" if excl else "") + "</section>")
     steps = case.get("next_steps") or []
-    out.append('<section id="next"><h2>Next steps</h2><ul>' + ("".join(f"<li>{e(s)}</li>" for s in steps) or "<li>none suggested</li>") + "</ul></section>")
+    out.append('<section id="next"><h2>Next steps</h2><ul>' + ("".join(f"<li>{e(strip_provenance(s))}</li>" for s in steps) or "<li>none suggested</li>") + "</ul></section>")
     warnings = result.get("warnings") or []
     counts = result.get("counts") or {}
     out.append('<section id="warnings"><h2>Warnings and counts</h2><ul>' + ("".join(f"<li>{e(w)}</li>" for w in warnings) or "<li>no warnings</li>")

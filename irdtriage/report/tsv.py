@@ -1,7 +1,11 @@
 """findings.tsv: one row per finding, tab-separated, written with the csv module.
 
-Line 1 is a comment starting with ``#`` (tool, panel, rules, build, sample, caution); line 2
-is the header with the column names in ``COLUMNS`` (stable; new columns are only appended).
+Line 1 is the header with the column names in ``COLUMNS`` (stable; new columns are only
+appended), so the file opens in a spreadsheet as a table. There is no comment line: the run
+metadata (tool, panel, rules, build, sample) is in result.json, and the clinical caution is the
+last column (``caution``) of every row, so it travels with any row copied out.
+``genotype_fit`` and ``cascade_step`` hold reader labels (``common.genotype_fit_label``, the
+step title from panels/cascade.yaml); their keys are in ``genotype_fit_id`` / ``cascade_step_id``.
 Lists are joined with ``;`` and unknown values are empty cells.
 """
 from __future__ import annotations
@@ -11,10 +15,10 @@ import io
 from pathlib import Path
 from typing import Iterator, Union
 
-from irdtriage import __version__
+from irdtriage import CAUTION
 from irdtriage.atomic import atomic_open
 
-from .common import cautions, criterion_label, met_criteria
+from .common import criterion_label, genotype_fit_label, met_criteria
 
 COLUMNS = (
     "finding_id", "gene", "gene_rank", "genotype_fit", "chrom", "pos", "ref", "alt",
@@ -22,6 +26,7 @@ COLUMNS = (
     "consequence", "zygosity", "genotype", "depth", "genotype_quality", "allele_balance",
     "filters", "quality_flags", "classification", "points", "posterior", "met_criteria",
     "not_evaluable", "interpretation_status", "cascade_step",
+    "cascade_step_id", "genotype_fit_id", "protein_accession", "ad", "caution",
 )
 
 
@@ -44,12 +49,15 @@ def iter_rows(result: dict) -> Iterator[dict]:
     for g in result.get("genes") or []:
         for fid in g.get("findings") or []:
             gene_of[fid] = g
+    caution = " ".join(CAUTION.split())
     for f in result.get("findings") or []:
         g = gene_of.get(f.get("id")) or {}
         o = f.get("original") or {}
+        step = g.get("cascade_step") or {}
+        fit = g.get("genotype_fit")
         yield {
             "finding_id": f.get("id"), "gene": f.get("gene"), "gene_rank": g.get("rank"),
-            "genotype_fit": g.get("genotype_fit"), "chrom": f.get("chrom"), "pos": f.get("pos"),
+            "genotype_fit": genotype_fit_label(fit) if fit else None, "chrom": f.get("chrom"), "pos": f.get("pos"),
             "ref": f.get("ref"), "alt": f.get("alt"), "original_pos": o.get("pos"),
             "original_ref": o.get("ref"), "original_alts": o.get("alts"),
             "transcript": f.get("transcript"), "hgvs_c": f.get("hgvs_c"), "hgvs_p": f.get("hgvs_p"),
@@ -61,22 +69,16 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "met_criteria": [criterion_label(c) for c in met_criteria(f)],
             "not_evaluable": [c.get("code") for c in f.get("criteria") or [] if c.get("met") is None],
             "interpretation_status": f.get("interpretation_status"),
-            "cascade_step": (g.get("cascade_step") or {}).get("id"),
+            "cascade_step": step.get("title") or step.get("id"),
+            "cascade_step_id": step.get("id"), "genotype_fit_id": fit,
+            "protein_accession": f.get("protein_accession"), "ad": None if f.get("ad") is None else ["." if x is None else x for x in f["ad"]],
+            "caution": caution,
         }
 
 
 def iter_tsv(result: dict, batch: int = 2000) -> Iterator[str]:
     """The text of findings.tsv in pieces of ``batch`` rows (one row per finding, none dropped)."""
-    panel = result.get("panel") or {}
-    rules = result.get("rules") or {}
-    sample = result.get("sample") or {}
-    comment = (
-        f"# irdtriage {__version__}; panel {panel.get('name')} {panel.get('version')} sha256:{panel.get('sha256')};"
-        f" rules {rules.get('name')} {rules.get('version')}; build {result.get('genome_build')};"
-        f" sample {sample.get('id')}; CAUTION: {' '.join(cautions(result))}"
-    )
     buf = io.StringIO()
-    buf.write(" ".join(comment.split()) + "\n")
     w = csv.writer(buf, delimiter="\t", lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
     w.writerow(COLUMNS)
     for i, row in enumerate(iter_rows(result), 1):

@@ -7,6 +7,12 @@ representation is kept in ``IRDT_ORIG`` (``pos|ref|alt1,alt2|allele_index``, enc
 genotype allele that belonged to *another* ALT of the original record is written as missing
 (``.``) because the output record has one ALT only.
 
+Samples: the proband first, then the mother and father named in ``result['sample']`` (PED)
+when the findings carry their calls; each with GT, DP, GQ and AD (reference, this allele).
+Contigs: one ``##contig`` line for every contig used, in the order the records are written
+(natural chromosome order, then the name itself, so an input mixing ``chr1`` and ``1``
+gives two contiguous blocks and a valid tabix index).
+
 New INFO fields (all ours, prefix ``IRDT_``) are declared in the header with Number/Type and
 a description. Text values are percent-encoded as the VCF 4.3 spec asks for reserved
 characters (``%`` ``:`` ``;`` ``=`` ``,`` CR LF TAB), plus space, so every value is one token.
@@ -43,6 +49,14 @@ INFO_FIELDS = [
     ("IRDT_STATUS", "1", "String", "Interpretation status (GA4GH Phenopacket word: CAUSATIVE, CANDIDATE, CONTRIBUTORY, REJECTED, UNKNOWN_STATUS)"),
     ("IRDT_QFLAG", ".", "String", "Quality thresholds the call failed (percent-encoded)"),
     ("IRDT_ORIG", "1", "String", "Original input representation pos|ref|alts|allele_index (percent-encoded) when it differs"),
+    ("IRDT_ZYG", "1", "String", "Allelic state of the proband's call: heterozygous, homozygous, hemizygous, homoplasmic, "
+     "heteroplasmic, haploid%20call (one allele where two copies are expected), reference, no%20call (percent-encoded)"),
+]
+FORMAT_FIELDS = [
+    ("GT", "1", "String", "Genotype"),
+    ("DP", "1", "Integer", "Read depth of the call (from the input VCF)"),
+    ("GQ", "1", "Integer", "Genotype quality (from the input VCF)"),
+    ("AD", "R", "Integer", "Allelic depths for the reference and this allele (from the input VCF)"),
 ]
 
 _ENC = {"%": "%25", ":": "%3A", ";": "%3B", "=": "%3D", ",": "%2C", "\r": "%0D", "\n": "%0A", "\t": "%09", " ": "%20"}
@@ -73,7 +87,11 @@ def _sample_name(sid: str) -> str:
 
 
 def _gt(finding: dict) -> tuple[tuple[Optional[int], ...], bool]:
-    gt = str(finding.get("genotype") or ".")
+    return _parse_gt(finding.get("genotype"))
+
+
+def _parse_gt(genotype: Optional[str]) -> tuple[tuple[Optional[int], ...], bool]:
+    gt = str(genotype or ".")
     phased = "|" in gt
     out: list[Optional[int]] = []
     for a in _GT_SPLIT.split(gt):
@@ -87,8 +105,23 @@ def _gt(finding: dict) -> tuple[tuple[Optional[int], ...], bool]:
 
 
 def _contig_key(chrom: str):
+    """Natural chromosome order, then the name itself: ``chr1`` and ``1`` stay separate blocks."""
     c = chrom[3:] if chrom.lower().startswith("chr") else chrom
-    return (0, int(c), "") if c.isdigit() else (1, 0, c)
+    return ((0, int(c), "") if c.isdigit() else (1, 0, c)), chrom
+
+
+def family_samples(result: dict) -> list[tuple[str, str]]:
+    """(role, sample id) of the parents named in result['sample'] whose calls the findings carry."""
+    sample = result.get("sample") or {}
+    seen: set[str] = set()
+    for f in result.get("findings") or []:
+        seen.update((f.get("family") or {}).keys())
+    out = []
+    for role in ("mother", "father"):
+        sid = sample.get(role)
+        if sid and sid in seen and sid != sample.get("id"):
+            out.append((role, str(sid)))
+    return out
 
 
 def build_header(result: dict, contigs: Iterable[str]) -> pysam.VariantHeader:
@@ -109,9 +142,35 @@ def build_header(result: dict, contigs: Iterable[str]) -> pysam.VariantHeader:
         h.contigs.add(c)
     for fid, num, typ, desc in INFO_FIELDS:
         h.info.add(fid, num, typ, desc)
-    h.formats.add("GT", 1, "String", "Genotype")
-    h.add_sample(_sample_name((result.get("sample") or {}).get("id")))
+    for fid, num, typ, desc in FORMAT_FIELDS:
+        h.formats.add(fid, num, typ, desc)
+    names = [_sample_name((result.get("sample") or {}).get("id"))]
+    for role, sid in family_samples(result):
+        name = _sample_name(sid)
+        if name not in names:
+            names.append(name)
+            h.add_line(f"##irdtriage_{role}={_header_text(name)}")
+    for n in names:
+        h.add_sample(n)
     return h
+
+
+def _int(v) -> Optional[int]:
+    return v if isinstance(v, int) and not isinstance(v, bool) else None
+
+
+def _set_call(r, name: str, call: dict) -> None:
+    """GT, DP, GQ and AD of one sample (``call``: genotype, dp, gq, ad from result.json)."""
+    gt, phased = _parse_gt(call.get("genotype"))
+    s = r.samples[name]
+    s["GT"] = gt
+    s.phased = phased
+    for key in ("dp", "gq"):
+        if _int(call.get(key)) is not None:
+            s[key.upper()] = call[key]
+    ad = call.get("ad")
+    if isinstance(ad, (list, tuple)) and len(ad) == 2 and any(_int(x) is not None for x in ad):
+        s["AD"] = tuple(_int(x) for x in ad)
 
 
 def write_vcf(result: dict, path: Union[str, Path], all_records: Optional[Iterable[dict]] = None) -> tuple[Path, Path]:
@@ -137,7 +196,9 @@ def write_vcf(result: dict, path: Union[str, Path], all_records: Optional[Iterab
     sample = list(header.samples)[0]
     seen = {(f["chrom"], f["pos"], f["ref"], f["alt"]) for f in findings}
     rows = [(f, True) for f in findings] + [(r, False) for r in extra if (r["chrom"], r["pos"], r["ref"], r["alt"]) not in seen]
-    rows.sort(key=lambda x: (_contig_key(x[0]["chrom"]), x[0]["pos"], x[0]["ref"], x[0]["alt"]))
+    rows.sort(key=lambda x: (_contig_key(x[0]["chrom"]), int(x[0]["pos"]), x[0]["ref"], x[0]["alt"]))
+    parents = [(sid, _sample_name(sid)) for _, sid in family_samples(result)]
+    parents = [(sid, name) for sid, name in parents if name in header.samples and name != sample]
 
     tbi = Path(str(path) + ".tbi")
     with atomic_path(path) as tmp_vcf, atomic_path(tbi) as tmp_tbi:
@@ -159,9 +220,10 @@ def write_vcf(result: dict, path: Union[str, Path], all_records: Optional[Iterab
                             if name not in out.header.filters:
                                 out.header.filters.add(name, None, None, "Filter from the input VCF")
                             r.filter.add(name)
-                    gt, phased = _gt(rec)
-                    r.samples[sample]["GT"] = gt
-                    r.samples[sample].phased = phased
+                    _set_call(r, sample, rec)
+                    fam = rec.get("family") or {}
+                    for sid, name in parents:
+                        _set_call(r, name, fam.get(sid) or {})
                     if is_finding:
                         _annotate(r, rec, gene_of.get(rec.get("id")))
                     out.write(r)
@@ -201,6 +263,8 @@ def _annotate(r, f: dict, gene: Optional[dict]) -> None:
         if gene.get("rank") is not None:
             info["IRDT_RANK"] = int(gene["rank"])
     info["IRDT_STATUS"] = encode(f.get("interpretation_status") or "UNKNOWN_STATUS")
+    if f.get("zygosity"):
+        info["IRDT_ZYG"] = encode(f["zygosity"])
     if f.get("quality_flags"):
         info["IRDT_QFLAG"] = tuple(encode(q) for q in f["quality_flags"])
     o = f.get("original") or {}
