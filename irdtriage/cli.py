@@ -1,15 +1,18 @@
 """The `irdtriage` command: argument checking, exit codes, and nothing else.
 
-Exit status: 0 success, 2 bad input (one line on stderr naming file, line and problem),
-1 an unexpected internal error (with a hint to re-run with --debug).
+Exit status: 0 success, 2 bad input (one line on stderr naming file, line and problem;
+also an output folder that cannot be written: disk full, file-size limit, read-only, in use
+by another run, holding foreign files or an input), 1 an unexpected internal error (with a
+hint to re-run with --debug), 130 after SIGINT, 143 after SIGTERM, 129 after SIGHUP.
+Outputs are written as one transaction (``irdtriage.atomic.output_transaction``).
 """
 from __future__ import annotations
 
 import argparse
 import os
 import shlex
+import signal
 import sys
-from pathlib import Path
 from typing import Optional, Sequence
 
 from . import CAUTION, __version__
@@ -17,6 +20,55 @@ from .errors import InputError
 from .panel import parse_gene_option
 
 FORMATS = ("json", "html", "tsv", "vcf", "phenopacket")
+
+
+class Terminated(BaseException):
+    """Raised by the SIGTERM/SIGHUP handler so that every finally-block (output clean-up) runs."""
+
+    def __init__(self, signum: int):
+        super().__init__(signum)
+        self.signum = signum
+
+
+def _raise_terminated(signum, frame):
+    raise Terminated(signum)
+
+
+def _install_signal_handlers():
+    """SIGINT -> KeyboardInterrupt, SIGTERM/SIGHUP -> Terminated, SIGXFSZ ignored (a write past the
+    file-size limit then fails with EFBIG instead of killing the process). Returns a restorer."""
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+    wanted = {signal.SIGINT: signal.default_int_handler, signal.SIGTERM: _raise_terminated}
+    for name in ("SIGHUP",):
+        if hasattr(signal, name):
+            wanted[getattr(signal, name)] = _raise_terminated
+    if hasattr(signal, "SIGXFSZ"):
+        wanted[signal.SIGXFSZ] = signal.SIG_IGN
+    previous = {}
+    for sig, handler in wanted.items():
+        try:
+            previous[sig] = signal.signal(sig, handler)
+        except (OSError, ValueError):  # pragma: no cover - platform without the signal
+            pass
+
+    def restore() -> None:
+        for sig, handler in previous.items():
+            signal.signal(sig, handler if handler is not None else signal.SIG_DFL)
+
+    return restore
+
+
+def _outcome(args) -> str:
+    """What an interrupted run leaves in its output folder."""
+    tx = getattr(args, "transaction", None)
+    if tx is None:
+        return "no output was written"
+    if tx.committed:
+        return f"the outputs in {tx.given} were complete before it stopped"
+    return f"no output was written; {tx.given} is as it was before the run"
 
 
 def _format_list(text: str) -> list[str]:
@@ -94,7 +146,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     e = sub.add_parser("explain", help="the full criterion table for one finding")
     e.add_argument("variant", help="finding id (F1), chrom-pos-ref-alt, or HGVS c./p. text")
-    e.add_argument("--result", metavar="FILE", help="a result.json (default: run the demo)")
+    e.add_argument("--result", metavar="FILE", help="the result.json of the case (required)")
+    e.add_argument("--demo", action="store_true",
+                   help="explain a finding of the bundled invented demo case instead of a --result")
 
     r = sub.add_parser("report", help="re-render outputs from a saved result.json")
     r.add_argument("result", help="result.json written by triage")
@@ -113,6 +167,7 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
     if not args.command:
         parser.print_help()
         return 2
+    restore_signals = _install_signal_handlers()
     try:
         if args.command == "triage":
             return cmd_triage(args, argv)
@@ -128,8 +183,11 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
         print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
-        print("irdtriage: interrupted; no output was written", file=sys.stderr)
+        print(f"irdtriage: interrupted; {_outcome(args)}", file=sys.stderr)
         return 130
+    except Terminated as t:
+        print(f"irdtriage: stopped by {signal.Signals(t.signum).name}; {_outcome(args)}", file=sys.stderr)
+        return 128 + t.signum
     except BrokenPipeError:
         return 0
     except Exception as e:  # pragma: no cover - internal errors
@@ -138,6 +196,8 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
         print(f"irdtriage: internal error: {type(e).__name__}: {e} (re-run with --debug for details)",
               file=sys.stderr)
         return 1
+    finally:
+        restore_signals()
     return 0
 
 
@@ -171,26 +231,37 @@ def _quality(args):
     return q
 
 
-def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optional[str]) -> dict:
+def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optional[str],
+                   inputs: Sequence[Optional[str]]) -> dict:
+    """Run the pipeline and write its outputs into --out as one transaction.
+
+    The output folder is locked and checked before the pipeline runs (a second run into the
+    same folder is refused at once); everything is written into a staging folder that is
+    swapped in only when complete.
+    """
+    from .atomic import output_transaction
     from .pipeline import triage
     from .report.terminal import render_terminal
-    from .report.writers import write_outputs
+    from .report.writers import is_output_file, render_outputs
 
-    result = triage(vcf, **kwargs)
-    pp = None
-    if input_phenopacket_path:
-        import json
+    with output_transaction(args.out, inputs=inputs, owned=is_output_file) as tx:
+        args.transaction = tx
+        result = triage(vcf, **kwargs)
+        pp = None
+        if input_phenopacket_path:
+            import json
 
-        with open(input_phenopacket_path, encoding="utf-8") as fh:
-            pp = json.load(fh)
-    paths = write_outputs(result, args.out, formats=args.formats, input_phenopacket=pp,
-                          cascade_steps=result.get("cascade"), input_phenopacket_path=input_phenopacket_path)
+            with open(input_phenopacket_path, encoding="utf-8") as fh:
+                pp = json.load(fh)
+        staged = render_outputs(result, tx.staging, formats=args.formats, input_phenopacket=pp,
+                                cascade_steps=result.get("cascade"), input_phenopacket_path=input_phenopacket_path)
+    paths = [tx.final_path(p) for p in staged.values()]
     console = _console()
     render_terminal(result, console, verbose=args.verbose, quiet=args.quiet)
     if not args.quiet:
         from .report.terminal import render_written
 
-        render_written(console, paths.values())
+        render_written(console, paths)
     return result
 
 
@@ -210,7 +281,11 @@ def cmd_triage(args, argv) -> int:
     for label, path in inputs:
         if path and not os.path.exists(path):
             raise InputError(f"{label} file not found", path)
-    _run_and_write(args.vcf, kwargs, args, args.phenopacket)
+    if args.hpo and args.hpo.startswith("@"):
+        inputs.append(("HPO list", args.hpo[1:]))
+    if args.genes and args.genes.startswith("@"):
+        inputs.append(("gene list", args.genes[1:]))
+    _run_and_write(args.vcf, kwargs, args, args.phenopacket, [p for _, p in inputs])
     return 0
 
 
@@ -220,7 +295,7 @@ def cmd_demo(args, argv) -> int:
     d = demo_inputs()
     kwargs = dict(sample=d["sample"], phenopacket=d["phenopacket"], ped=d["ped"],
                   command="irdtriage " + " ".join(shlex.quote(a) for a in argv))
-    _run_and_write(d["vcf"], kwargs, args, d["phenopacket"])
+    _run_and_write(d["vcf"], kwargs, args, d["phenopacket"], [d["vcf"], d["ped"], d["phenopacket"]])
     return 0
 
 
@@ -284,38 +359,66 @@ def cmd_explain(args) -> int:
     from .explain import find_finding, render_explain
     from .report.json_out import load_result
 
+    if args.result and args.demo:
+        raise InputError("explain takes either --result FILE or --demo, not both")
     if args.result:
+        if not os.path.exists(args.result):
+            raise InputError("result file not found", args.result)
         result = load_result(args.result)
-    else:
+        source = args.result
+    elif args.demo:
         from .demo import demo_inputs
         from .pipeline import triage
 
         d = demo_inputs()
         result = triage(d["vcf"], sample=d["sample"], phenopacket=d["phenopacket"], ped=d["ped"])
+        source = None
+    else:
+        raise InputError("explain needs --result FILE (the result.json of the case to explain); "
+                         "use --demo to explain the bundled invented demo case instead")
     finding = find_finding(result, args.variant)
-    render_explain(result, finding, _console())
+    render_explain(result, finding, _console(), source=source)
     return 0
 
 
 def cmd_report(args) -> int:
+    """Re-render outputs from a saved result.json, written as one transaction like triage's.
+
+    Into the result's own folder (the default) the new set keeps the folder's other files
+    (result.json itself is never rewritten in place); into another folder the set is exactly
+    the formats asked for.
+    """
     import json
 
+    from .atomic import output_transaction
     from .report.json_out import load_result
-    from .report.writers import write_outputs
+    from .report.terminal import render_written
+    from .report.writers import is_output_file, output_names, render_outputs
 
+    if not os.path.exists(args.result):
+        raise InputError("result file not found", args.result)
+    if args.phenopacket and not os.path.exists(args.phenopacket):
+        raise InputError("phenopacket file not found", args.phenopacket)
     result = load_result(args.result)
-    out = args.out or str(Path(args.result).resolve().parent)
-    formats = args.formats or list(FORMATS)
-    if "json" in formats and Path(out).resolve() == Path(args.result).resolve().parent:
+    source_dir = os.path.dirname(os.path.abspath(args.result))
+    out = args.out or source_dir
+    in_place = os.path.realpath(out) == os.path.realpath(source_dir)
+    formats = list(args.formats or FORMATS)
+    if in_place:
         formats = [f for f in formats if f != "json"]  # never rewrite the source in place
     pp = None
     if args.phenopacket:
         with open(args.phenopacket, encoding="utf-8") as fh:
             pp = json.load(fh)
-    paths = write_outputs(result, out, formats=formats, input_phenopacket=pp, cascade_steps=result.get("cascade"))
-    from .report.terminal import render_written
-
-    render_written(_console(), paths.values())
+    with output_transaction(out, inputs=[args.result, args.phenopacket], owned=is_output_file,
+                            allowed_inputs=[args.result] if in_place else []) as tx:
+        args.transaction = tx
+        staged = render_outputs(result, tx.staging, formats=formats, input_phenopacket=pp,
+                                cascade_steps=result.get("cascade"), input_phenopacket_path=args.phenopacket)
+        if in_place:
+            written = set(output_names(result, formats))
+            tx.carry_over(sorted(p.name for p in tx.out.iterdir() if p.name not in written and is_output_file(p)))
+    render_written(_console(), [tx.final_path(p) for p in staged.values()])
     return 0
 
 

@@ -1,7 +1,7 @@
 """`irdtriage explain`: the full criterion table for one finding of a result."""
 from __future__ import annotations
 
-from typing import Any
+from typing import Any, Optional
 
 from . import CAUTION
 from .errors import InputError
@@ -36,10 +36,22 @@ def find_finding(result: dict[str, Any], query: str) -> dict[str, Any]:
     raise InputError(f"no finding matches {query!r}; findings are: {known or 'none'}")
 
 
-def render_explain(result: dict[str, Any], finding: dict[str, Any], console) -> None:
+def case_line(result: dict[str, Any], source: Optional[str]) -> str:
+    """Whose finding this is: the sample and the result file, or the invented demo case."""
+    sample = (result.get("sample") or {}).get("id") or "unnamed sample"
+    started = (result.get("run") or {}).get("started")
+    when = f", run started {started}" if started else ""
+    if source is None:
+        return f"Case: {sample} of the bundled invented demo case (not a patient){when}"
+    return f"Case: {sample} from {source}{when}"
+
+
+def render_explain(result: dict[str, Any], finding: dict[str, Any], console, source: Optional[str] = None) -> None:
+    """Print the criterion table of ``finding``; ``source`` is the result file (None: the demo)."""
     from rich.table import Table
 
     f = finding
+    console.print(case_line(result, source), soft_wrap=True)
     head = (f"{f['id']}  {f['gene']} {f.get('transcript') or ''} {f.get('hgvs_c') or ''} "
             f"{f.get('hgvs_p') or ''}  [{f['chrom']}:{f['pos']} {f['ref']}>{f['alt']}, {f['zygosity']}]")
     console.print(head, soft_wrap=True)
