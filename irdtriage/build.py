@@ -54,7 +54,7 @@ CONTIG_LENGTHS: dict[str, dict[str, int]] = {
 # read with the wrong coordinates. T2T-CHM13v2.0 chr1 length 248,387,328 (from memory).
 UNSUPPORTED_LENGTHS: dict[str, dict[int, str]] = {"1": {248_387_328: "T2T-CHM13"}}
 _UNSUPPORTED_NAMES = (
-    ("T2T-CHM13", re.compile(r"(?<![a-z0-9])(chm13|t2t|hs1)(?![a-z0-9])", re.I)),
+    ("T2T-CHM13", re.compile(r"(?<![a-z0-9])(chm13|t2t)|(?<![a-z0-9])hs1(?![a-z0-9])", re.I)),
 )
 
 # Names found in ##reference / ##assembly lines (file names or assembly names), matched

@@ -666,9 +666,11 @@ def _line_last(line: bytes, pos: int, t3: int, t4: int) -> int:
     last = pos + (t4 - t3 - 1) - 1
     t5 = line.find(b"\t", t4 + 1)
     if t5 > 0 and line.find(b"<", t4, t5) >= 0:
+        # columns ... ALT t5 QUAL t6 FILTER t7 INFO t8 FORMAT ...
         t6 = line.find(b"\t", t5 + 1)
         t7 = line.find(b"\t", t6 + 1) if t6 > 0 else -1
-        info = line[t6 + 1:t7 if t7 > 0 else len(line)] if t6 > 0 else b""
+        t8 = line.find(b"\t", t7 + 1) if t7 > 0 else -1
+        info = line[t7 + 1:t8 if t8 > 0 else len(line)] if t7 > 0 else b""
         m = _END_IN_INFO.search(info)
         if m:
             last = max(last, int(m.group(1)))
@@ -704,6 +706,8 @@ def _stream_hits(path: str, kind: str, merged: dict[str, list[tuple[int, int]]],
             pos = int(line[t1 + 1:t2])
         except ValueError:
             raise InputError(f"malformed data line (POS {line[t1 + 1:t2][:20].decode(errors='replace')!r} is not a number)", path, n)
+        if pos < 1 and b"[" not in line and b"]" not in line:
+            raise InputError(f"POS {pos} is not a position (VCF positions start at 1)", path, n)
         t3 = line.find(b"\t", t2 + 1)
         t4 = line.find(b"\t", t3 + 1) if t3 > 0 else -1
         if t3 < 0 or t4 < 0:
@@ -749,6 +753,8 @@ def _stream_hits(path: str, kind: str, merged: dict[str, list[tuple[int, int]]],
                     pos = int(line[t1 + 1:t2])
                 except ValueError:
                     raise InputError(f"malformed data line (POS {line[t1 + 1:t2][:20].decode(errors='replace')!r} is not a number)", path, base + k + 1)
+                if pos < 1 and b"[" not in line and b"]" not in line:  # telomeric breakends may use 0
+                    raise InputError(f"POS {pos} is not a position (VCF positions start at 1)", path, base + k + 1)
                 # last reference base: POS + len(REF) - 1 (INFO END for a symbolic ALT)
                 t3 = line.find(b"\t", t2 + 1)
                 t4 = line.find(b"\t", t3 + 1)
