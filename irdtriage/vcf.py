@@ -760,7 +760,8 @@ def _stream_hits(path: str, kind: str, merged: dict[str, list[tuple[int, int]]],
                 t4 = line.find(b"\t", t3 + 1)
                 if t3 < 0 or t4 < 0:
                     raise InputError("malformed data line (fewer than 8 columns)", path, base + k + 1)
-                if ov.hit(pos, pos + (t4 - t3 - 1) - 1) or ov.hit(pos, _line_last(line, pos, t3, t4)):
+                if ov.hit(pos, pos + (t4 - t3 - 1) - 1) or (
+                        line.find(b"<", t4, t4 + 64) >= 0 and ov.hit(pos, _line_last(line, pos, t3, t4))):
                     hits.append(line)
                     hit_lines.append(base + k + 1)
         if rest.strip():
