@@ -8,10 +8,10 @@ Sources for the expected behaviour:
   haploid call; INFO END gives the end of a symbolic allele; gVCF <NON_REF>/<*> stand for
   "any other allele" (GATK/bcftools gVCF convention, common practice).
 - Normalisation: Tan, Abecasis and Kang, "Unified representation of genetic variants",
-  Bioinformatics 31:2202 (2015): a variant is normalised when left-aligned and parsimonious, so
+  Bioinformatics 31:2202 (2015; volume and page from memory): a variant is normalised when left-aligned and parsimonious, so
   two records describing one change normalise to the same position and alleles.
 - Index age: htslib's own rule (hts.c warns "The index file is older than the data file" when
-  the index's modification time is earlier than the data's).
+  the index's modification time is earlier than the data's; from memory of the htslib source).
 - Contig lengths: GRCh38 chr1 248,956,422 bp and GRCh37 chr1 249,250,621 bp (project standards
   notes); T2T-CHM13v2.0 chr1 248,387,328 bp (from memory).
 - Gene coordinates: GRCh38 MANE Select v1.5 spans, RPE65 chr1:68,428,822-68,449,954 and
