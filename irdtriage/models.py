@@ -167,6 +167,7 @@ class Variant:
     line: Optional[int] = None  # line number in a plain-text VCF when known
     info: dict[str, Any] = field(default_factory=dict)  # raw INFO values for this allele
     calls: dict[str, Call] = field(default_factory=dict)  # by sample id
+    intake_flags: tuple[str, ...] = ()  # intake problems that make the call need review (disagreeing duplicates)
 
     @property
     def chrom_bare(self) -> str:

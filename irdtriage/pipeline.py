@@ -77,7 +77,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .consequence.annotations import pick_annotation
     from .evidence import EvidenceConfig, EvidenceSources, collect_evidence
     from .panel import GeneLocator, load_panel
-    from .vcf import QualityThresholds, quality_flags, read_vcf
+    from .vcf import QualityThresholds, quality_flags, read_vcf, structural_warnings
 
     started = _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat().replace("+00:00", "Z")
     warnings: list[str] = list(opts.extra_warnings)
@@ -115,6 +115,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                       build=opts.build, padding=opts.padding, quality=quality,
                       unannotated_intervals=None if opts.all_variants else exon_intervals)
     warnings.extend(intake.warnings)
+    warnings.extend(structural_warnings(intake.structural_events))
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
     if opts.phenopacket:

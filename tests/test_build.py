@@ -12,7 +12,7 @@ from __future__ import annotations
 import pysam
 import pytest
 
-from irdtriage.build import check_build, chrom_style, detect_build, explain_build
+from irdtriage.build import check_build, chrom_style, detect_build, explain_build, resolve_build
 from irdtriage.errors import InputError
 
 
@@ -59,9 +59,59 @@ def test_reference_lines(tmp_path, line, expected):
     assert detect_build(header(tmp_path, [line])) == expected
 
 
-def test_contig_lengths_beat_reference_line(tmp_path):
+def test_reference_line_contradicting_lengths_stops(tmp_path):
+    # GRCh37 chr1 is 249,250,621 bp (standards notes); hg38 names GRCh38 (common practice)
     h = header(tmp_path, ["##reference=hg38.fa", "##contig=<ID=chr1,length=249250621>"])
-    assert detect_build(h) == "GRCh37"
+    with pytest.raises(InputError) as ei:
+        detect_build(h, "c.vcf")
+    msg = str(ei.value)
+    assert msg.startswith("c.vcf: ") and "\n" not in msg
+    assert "249250621" in msg and "##reference=hg38.fa" in msg and "GRCh37" in msg and "GRCh38" in msg
+    # --build naming the build of the lengths settles it, with a warning; the other build is refused
+    build, _, warns = resolve_build(h, "GRCh37", "c.vcf")
+    assert build == "GRCh37" and any("hg38.fa" in w for w in warns)
+    with pytest.raises(InputError) as ei:
+        resolve_build(h, "GRCh38", "c.vcf")
+    assert "--build GRCh38" in str(ei.value) and "249250621" in str(ei.value)
+
+
+def test_assembly_line_contradicting_lengths_stops(tmp_path):
+    # GRCh38 chr1 248,956,422 bp (standards notes) with an ##assembly naming b37
+    h = header(tmp_path, ["##assembly=b37", "##contig=<ID=1,length=248956422>"])
+    with pytest.raises(InputError) as ei:
+        detect_build(h, "a.vcf")
+    assert "##assembly=b37" in str(ei.value) and "248956422" in str(ei.value)
+
+
+def test_two_reference_names_disagreeing_stop(tmp_path):
+    h = header(tmp_path, ["##reference=GRCh38", "##contig=<ID=1,assembly=b37>"])
+    with pytest.raises(InputError) as ei:
+        detect_build(h, "n.vcf")
+    assert "GRCh37" in str(ei.value) and "GRCh38" in str(ei.value)
+
+
+@pytest.mark.parametrize("lines", [
+    ["##contig=<ID=chr1,length=248387328>"],  # T2T-CHM13v2.0 chr1 (from memory)
+    ["##reference=file:///ref/chm13v2.0.fa"],
+    ["##assembly=T2T-CHM13v2.0"],
+])
+def test_t2t_is_refused(tmp_path, lines):
+    with pytest.raises(InputError) as ei:
+        detect_build(header(tmp_path, lines), "t.vcf")
+    assert "T2T-CHM13" in str(ei.value) and "not supported" in str(ei.value)
+
+
+# Chromosome lengths typed in from the UCSC hg19/hg38 chrom.sizes tables (which equal the GRC
+# primary-assembly sequence lengths, GCF_000001405.13 / GCF_000001405.26), as printed in
+# public VCF headers (GATK b37 dictionary; a GRCh38 contig block). chr22 and chr17 chosen
+# because the two builds differ in opposite directions there.
+@pytest.mark.parametrize("contig,length,expected", [
+    ("22", 51304566, "GRCh37"), ("chr22", 50818468, "GRCh38"),
+    ("17", 81195210, "GRCh37"), ("chr17", 83257441, "GRCh38"),
+    ("chr11", 135086622, "GRCh38"), ("11", 135006516, "GRCh37"),
+])
+def test_other_chromosome_lengths(tmp_path, contig, length, expected):
+    assert detect_build(header(tmp_path, [f"##contig=<ID={contig},length={length}>"])) == expected
 
 
 def test_no_evidence_and_mixed_builds(tmp_path):

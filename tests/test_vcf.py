@@ -11,10 +11,10 @@ from __future__ import annotations
 import gzip
 import random
 import shutil
-import subprocess
 from dataclasses import asdict
 
 import pysam
+import pysam.bcftools
 import pytest
 
 from irdtriage.errors import InputError
@@ -73,7 +73,7 @@ def to_bcf(vcf_path, out, index=True):
         for rec in src:
             dst.write(rec)
     if index:
-        subprocess.run(["bcftools", "index", "-f", str(out)], check=True)
+        pysam.bcftools.index("-f", str(out))  # htslib's bcftools bundled with pysam: writes .csi
     return out
 
 

@@ -197,15 +197,18 @@ def _entries(variant: Variant, layouts: dict[str, list[str]]) -> list[tuple[str,
         if len(variant.original_alts) <= 1:
             out.extend((key, e) for e in entries)
             continue
+        # alleles are case-insensitive (VCF 4.3 section 1.6.1): compare them uppercased
         if key == "CSQ":
-            wanted = {csq_allele(variant.original_ref, variant.original_alts, variant.allele_index)}
+            wanted = {csq_allele(variant.original_ref.upper(), tuple(a.upper() for a in variant.original_alts),
+                                 variant.allele_index)}
         else:
-            wanted = {variant.original_alts[variant.allele_index - 1]}
-        mine = [e for e in entries if e.get("Allele") in wanted]
+            wanted = {variant.original_alts[variant.allele_index - 1].upper()}
+        mine = [e for e in entries if (e.get("Allele") or "").upper() in wanted]
         if not mine:  # annotator wrote alleles differently: accept any reasonable spelling
-            alt = variant.original_alts[variant.allele_index - 1]
-            loose = {alt, variant.alt, alt[1:] or "-", variant.alt[1:] or "-"}
-            mine = [e for e in entries if e.get("Allele") in loose]
+            alt = variant.original_alts[variant.allele_index - 1].upper()
+            valt = variant.alt.upper()
+            loose = {alt, valt, alt[1:] or "-", valt[1:] or "-"}
+            mine = [e for e in entries if (e.get("Allele") or "").upper() in loose]
         out.extend((key, e) for e in mine)
     return out
 
