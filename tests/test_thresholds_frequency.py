@@ -127,11 +127,14 @@ def test_hearing_loss_bs1_at_point_three_percent(faf, met):
     assert r.strength == ("Strong" if met else None)
 
 
-def test_hearing_loss_ba1_ignores_popmax_above_cutoff_when_faf_below():
+@pytest.mark.parametrize("symbol", ["MYO7A", "USH2A"])
+def test_hearing_loss_filtering_af_decides_not_popmax(symbol):
     # popmax 0.006 > 0.005 but the filtering AF 0.004 < 0.005: the specification's statistic wins.
-    r = run("MYO7A", info_record(af=0.006, popmax=0.006, faf=0.004))
+    r = run(symbol, info_record(af=0.006, popmax=0.006, faf=0.004))
     assert r["BA1"].met is False
     assert r["BS1"].met is True  # 0.004 >= 0.003
+    # popmax 0.004 >= 0.003 but the filtering AF 0.002 < 0.003: no BS1.
+    assert run(symbol, info_record(af=0.004, popmax=0.004, faf=0.002))["BS1"].met is False
 
 
 def test_hearing_loss_from_population_counts():
