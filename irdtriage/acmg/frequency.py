@@ -22,6 +22,7 @@ The observed value compared with maxAF is the filtering allele frequency (irdtri
 from __future__ import annotations
 
 import math
+import operator
 import re
 from typing import Optional
 
@@ -32,6 +33,67 @@ from .rules import Rules
 
 NO_FREQ = ("no population frequency available (needs --population-vcf, or gnomAD-style fields "
            "in INFO/annotation)")
+
+# Comparison operators a rule set may state for BA1/BS1 (criteria.yaml ``*_operator``), and the
+# wording of their negation in reasons.
+_OPS = {">": operator.gt, ">=": operator.ge}
+_NOT = {">": "<=", ">=": "<"}
+
+# gnomAD genetic-ancestry group codes and their plain names (gnomAD browser labels; common practice).
+POPULATION_NAMES = {
+    "afr": "African/African American", "amr": "Admixed American", "asj": "Ashkenazi Jewish",
+    "eas": "East Asian", "fin": "European (Finnish)", "nfe": "European (non-Finnish)",
+    "sas": "South Asian", "mid": "Middle Eastern", "ami": "Amish", "oth": "remaining individuals",
+    "remaining": "remaining individuals", "rmi": "remaining individuals",
+}
+
+
+def population_label(code: Optional[str]) -> str:
+    """'European (non-Finnish) (nfe)' for a gnomAD group code; unknown codes are shown as given."""
+    if not code:
+        return ""
+    name = POPULATION_NAMES.get(code.lower())
+    return f"{name} ({code})" if name else code
+
+
+_DATASETS = (  # (pattern on the key's prefix, plain name); first match wins
+    (re.compile(r"^gnomad(e|_exomes?)_", re.IGNORECASE), "gnomAD exomes"),
+    (re.compile(r"^gnomad(g|_genomes?)_", re.IGNORECASE), "gnomAD genomes"),
+    (re.compile(r"^gnomad_", re.IGNORECASE), "gnomAD"),
+    (re.compile(r"^exac_", re.IGNORECASE), "ExAC"),
+)
+
+
+def field_label(key: str, where: str = "INFO") -> str:
+    """Plain name of a population-frequency field with its key in brackets, e.g.
+    ``gnomADe_AF`` -> 'gnomAD exomes allele frequency (INFO gnomADe_AF)'."""
+    dataset = next((name for rx, name in _DATASETS if rx.search(key)), "")
+    low = key.lower()
+    if "faf" in low:
+        stat = "filtering allele frequency"
+    elif re.search(r"(grpmax|popmax|max_af)", low):
+        stat = "highest population allele frequency"
+    elif re.search(r"(^|_)af($|_)", low):
+        stat = "allele frequency"
+    elif re.search(r"(^|_)ac($|_)", low):
+        stat = "allele count"
+    elif re.search(r"(^|_)an($|_)", low):
+        stat = "allele number"
+    elif "hom" in low:
+        stat = "homozygote count"
+    else:
+        stat = "population frequency field"
+    return f"{dataset + ' ' if dataset else ''}{stat} ({where} {key})"
+
+
+def _source_text(pop: dict) -> str:
+    """Where the frequency came from, in plain words, for the BA1 reason."""
+    if pop.get("source") == "population_vcf":
+        return "population-frequency VCF"
+    keys = pop.get("keys") or []
+    if pop.get("source") == "info" and keys:
+        return ", ".join(field_label(k, "INFO/annotation") for k in keys)
+    return ""
 
 
 def max_credible_af(prevalence: float, allelic_contribution: float, genetic_contribution: float,
@@ -101,6 +163,42 @@ def _fmt(x: Optional[float]) -> str:
     return "n/a" if x is None else (f"{x:.3g}" if x else "0")
 
 
+def _fmt_pair(x: float, t: float) -> tuple[str, str]:
+    """A value and its threshold, with enough digits that unequal numbers never print alike."""
+    for digits in (3, 6, 10, 17):
+        a, b = (f"{x:.{digits}g}" if x else "0"), f"{t:.{digits}g}"
+        if a != b or x == t:
+            return a, b
+    return repr(x), repr(t)
+
+
+def _statistic(obs: dict, stat: str) -> tuple[Optional[float], str, Optional[str]]:
+    """(value, plain label, population code) of the statistic a rule set asks for."""
+    highest = obs["popmax_af"] if obs["popmax_af"] is not None else obs["af"]
+    h_label = "highest continental allele frequency" if obs["popmax_af"] is not None else "allele frequency"
+    if stat == "filtering":
+        if obs["faf"] is not None:
+            return obs["faf"], "filtering allele frequency", obs["faf_population"]
+        return highest, f"{h_label} (filtering allele frequency not available: no allele counts)", \
+            obs["popmax_population"]
+    return highest, h_label, obs["popmax_population"]
+
+
+def _compare(code: str, value: float, label: str, pop: Optional[str], op: str, t: float, basis: str,
+             exc: Optional[dict], strength: str, obs: dict) -> CriterionResult:
+    """BA1/BS1 outcome for one comparison ``value op t``, with a curated exception taking precedence."""
+    v_txt, t_txt = _fmt_pair(value, t)
+    where = f" in {population_label(pop)}" if pop else ""
+    if _OPS[op](value, t):
+        if exc:
+            return result(code, False, None, f"{label} {v_txt}{where} {op} {t_txt} but curated exception: "
+                          f"{exc['reason']}", exception=exc, threshold=t, operator=op, **obs)
+        return result(code, True, strength, f"{label} {v_txt}{where} {op} {t_txt} ({basis})", threshold=t,
+                      operator=op, **obs)
+    return result(code, False, None, f"{label} {v_txt}{where} {_NOT[op]} {t_txt} ({basis})", threshold=t,
+                  operator=op, **obs)
+
+
 def _pm2_threshold(gene: Gene, f: dict, g: dict) -> tuple[float, str]:
     if "pm2_max_af" in g:
         return g["pm2_max_af"], g.get("spec", "gene specification")
@@ -117,7 +215,14 @@ def _absent_declared(pop: dict, gene: Gene, rules: Rules) -> list[CriterionResul
     is not evaluable (no homozygote or heterozygote count; allele number unknown).
     """
     f, g = rules.frequency, rules.gene(gene.symbol)
-    note = pop.get("note") or "absent: empty frequency fields in an annotation that declares them"
+    declared = list(pop.get("declared_empty") or [])
+    af_like = [k for k in declared if not re.search(r"(^|_)(ac|an)($|_)", k, re.IGNORECASE)] or declared
+    if af_like:
+        note = ("absent: empty " + ", ".join(field_label(k, "annotation field") for k in af_like)
+                + " in an annotation that declares "
+                + ("it" if len(af_like) == 1 else "them"))
+    else:
+        note = "absent: empty frequency fields in an annotation that declares them"
     obs = {k: pop.get(k) for k in ("af", "ac", "an", "nhomalt", "source", "declared_empty")}
     if not f.get("absent_when_declared_empty", False):
         off = f"{note}; not used (criteria setting frequency.absent_when_declared_empty is off): {NO_FREQ}"
@@ -145,25 +250,25 @@ def evaluate_frequency(variant: Variant, ann: Optional[Annotation], gene: Gene, 
     obs = _observed(pop, rules)
     f, g = rules.frequency, rules.gene(gene.symbol)
     exc = frequency_exception(variant, ann, gene, rules)
-    where = f" in {obs['popmax_population']}" if obs["popmax_population"] else ""
-    highest = obs["popmax_af"] if obs["popmax_af"] is not None else obs["af"]
     out = []
 
-    # BA1 (Ghosh 2018): > threshold in a continental population with enough alleles.
+    # BA1 (Ghosh 2018: > 0.05 in a continental population with enough alleles), or the gene
+    # specification's cut-off, operator and statistic (criteria.yaml).
     ba1_t = g.get("ba1_af", f["ba1_af"])
-    if highest is None:
+    op, stat = rules.comparison(gene.symbol, "ba1")
+    value, label, vpop = _statistic(obs, stat)
+    basis = g.get("spec", "gene specification") if "ba1_af" in g else "Ghosh et al. 2018"
+    src = _source_text(pop)
+    if src:
+        basis += f"; source: {src}"
+    if value is None:
         out.append(result("BA1", None, None, "population record has no allele frequency", **obs))
-    elif exc and highest > ba1_t:
-        out.append(result("BA1", False, None, f"AF {_fmt(highest)}{where} > {ba1_t:g} but curated exception: "
-                          f"{exc['reason']}", exception=exc, **obs))
-    elif highest > ba1_t:
-        out.append(result("BA1", True, "StandAlone", f"AF {_fmt(highest)}{where} > {ba1_t:g} "
-                          f"({'gene specification' if 'ba1_af' in g else 'Ghosh et al. 2018'})", threshold=ba1_t, **obs))
     else:
-        out.append(result("BA1", False, None, f"AF {_fmt(highest)}{where} <= {ba1_t:g}", threshold=ba1_t, **obs))
+        out.append(_compare("BA1", value, label, vpop, op, ba1_t, basis, exc, "StandAlone", obs))
 
-    # BS1: filtering AF above the gene's maximum credible AF (or the gene specification's cut-off).
-    value, label = (obs["faf"], "filtering AF") if obs["faf"] is not None else (highest, "popmax AF")
+    # BS1: frequency above the gene's maximum credible AF (or the gene specification's cut-off).
+    op, stat = rules.comparison(gene.symbol, "bs1")
+    value, label, vpop = _statistic(obs, stat)
     if "bs1_af" in g:
         t, basis = g["bs1_af"], g.get("spec", "gene specification")
     elif "max_credible" in g:
@@ -185,13 +290,8 @@ def evaluate_frequency(variant: Variant, ann: Optional[Annotation], gene: Gene, 
                           "(add genes.{0}.max_credible to criteria.yaml)".format(gene.symbol), **obs))
     elif value is None:
         out.append(result("BS1", None, None, "no allele frequency to compare", **obs))
-    elif exc and value > t:
-        out.append(result("BS1", False, None, f"{label} {_fmt(value)} > {t:.3g} but curated exception: "
-                          f"{exc['reason']}", exception=exc, threshold=t, **obs))
-    elif value > t:
-        out.append(result("BS1", True, "Strong", f"{label} {_fmt(value)} > {t:.3g} ({basis})", threshold=t, **obs))
     else:
-        out.append(result("BS1", False, None, f"{label} {_fmt(value)} <= {t:.3g} ({basis})", threshold=t, **obs))
+        out.append(_compare("BS1", value, label, vpop, op, t, basis, exc, "Strong", obs))
 
     # PM2 at Supporting (SVI 2020): absent (dominant) / extremely rare (recessive).
     t2, basis2 = _pm2_threshold(gene, f, g)

@@ -26,12 +26,20 @@ _FREQ = {"ba1_af": (0, 1), "min_an": (0, 10**9), "continental": None, "pm2_stren
          "bs2_min_homozygotes": (1, 10**6), "bs2_min_heterozygotes_dominant": (1, 10**6)}
 # optional booleans (default False when absent)
 _FREQ_OPTIONAL = frozenset({"absent_when_declared_empty"})
+# How BA1 and BS1 compare a frequency with their cut-off, panel-wide (frequency block) or per gene:
+# the operator (">" or ">=") and the statistic ("popmax": highest continental allele frequency;
+# "filtering": filtering allele frequency, Whiffin et al. 2017).  A specification states both.
+OPERATORS = (">", ">=")
+STATISTICS = ("popmax", "filtering")
+COMPARISON_KEYS = frozenset({"ba1_operator", "ba1_statistic", "bs1_operator", "bs1_statistic"})
+# Used when a criteria file does not state them (Richards 2015 / Ghosh 2018 for BA1; Whiffin 2017 for BS1).
+COMPARISON_DEFAULTS = {"ba1": (">", "popmax"), "bs1": (">", "filtering")}
 _INSILICO = {"scores": None, "spliceai_pp3": (0, 1), "spliceai_benign": (0, 1),
              "bp7_intron_donor_min": (1, 1000), "bp7_intron_acceptor_min": (1, 1000),
              "pp3_pm1_cap_points": (1, 8)}
 _PVS1 = {"nmd_penultimate_nt": (0, 1000), "removed_fraction_strong": (0, 1), "start_lost_strength": None}
 _GENE = {"pm1_residues", "max_credible", "bs2", "spec", "ba1_af", "bs1_af", "pm2_max_af", "pp2", "bp1",
-         "repeat_residues", "critical_residues", "bs2_dominant", "start_lost_strength"}
+         "repeat_residues", "critical_residues", "bs2_dominant", "start_lost_strength"} | COMPARISON_KEYS
 _MAXCRED = {"prevalence", "allelic_contribution", "genetic_contribution", "penetrance", "note", "inheritance"}
 
 
@@ -61,6 +69,15 @@ class Rules:
 
     def exceptions(self, symbol: str) -> list[dict[str, Any]]:
         return [e for e in self.data.get("frequency_exceptions", []) if e.get("gene") == symbol]
+
+    def comparison(self, symbol: str, code: str) -> tuple[str, str]:
+        """(operator, statistic) for ``code`` "ba1" or "bs1" in gene ``symbol``: the gene's own
+        setting, else the panel-wide one in ``frequency``, else COMPARISON_DEFAULTS."""
+        g, f = self.gene(symbol), self.frequency
+        op0, stat0 = COMPARISON_DEFAULTS[code]
+        op = g.get(f"{code}_operator", f.get(f"{code}_operator", op0))
+        stat = g.get(f"{code}_statistic", f.get(f"{code}_statistic", stat0))
+        return op, stat
 
     def default_max_credible(self, mode: str) -> Optional[dict]:
         """Panel-wide fallback parameters for a gene without its own max_credible block."""
@@ -123,6 +140,13 @@ class _Checker:
                 self.number(block[k], where + (k,), *rng)
 
 
+def _comparison_keys(block: dict, where: tuple, c: _Checker) -> None:
+    for k in COMPARISON_KEYS & set(block):
+        allowed = OPERATORS if k.endswith("_operator") else STATISTICS
+        if block[k] not in allowed:
+            c.fail(where + (k,), f"{k} must be one of {', '.join(repr(a) for a in allowed)}, got {block[k]!r}")
+
+
 def _validate(data: Any, c: _Checker) -> None:
     c.mapping(data, (), _TOP, _TOP - {"frequency_exceptions", "genes", "default_max_credible"})
     dm = data.get("default_max_credible")
@@ -138,7 +162,7 @@ def _validate(data: Any, c: _Checker) -> None:
     for k in ("name", "version"):
         if not isinstance(data[k], str) or not data[k].strip():
             c.fail((k,), f"{k} must be a non-empty string")
-    c.ranged(data["frequency"], ("frequency",), _FREQ, _FREQ_OPTIONAL)
+    c.ranged(data["frequency"], ("frequency",), _FREQ, _FREQ_OPTIONAL | COMPARISON_KEYS)
     f = data["frequency"]
     for k in _FREQ_OPTIONAL:
         if k in f and not isinstance(f[k], bool):
@@ -146,6 +170,7 @@ def _validate(data: Any, c: _Checker) -> None:
     if not isinstance(f["continental"], list) or not all(isinstance(x, str) for x in f["continental"]):
         c.fail(("frequency", "continental"), "continental must be a list of population codes")
     c.strength(f["pm2_strength"], ("frequency", "pm2_strength"))
+    _comparison_keys(f, ("frequency",), c)
     c.ranged(data["in_silico"], ("in_silico",), _INSILICO)
     ins = data["in_silico"]
     if ins["spliceai_benign"] >= ins["spliceai_pp3"]:
@@ -199,6 +224,7 @@ def _validate(data: Any, c: _Checker) -> None:
         for k in ("ba1_af", "bs1_af", "pm2_max_af"):
             if k in g:
                 c.number(g[k], w + (k,), 0, 1)
+        _comparison_keys(g, w, c)
         for k in ("bs2", "pp2", "bp1", "bs2_dominant"):
             if k in g and not isinstance(g[k], bool):
                 c.fail(w + (k,), f"{k} must be true or false")
