@@ -2,7 +2,8 @@
 
 Line 1 is a comment starting with ``#`` (tool, panel, rules, build, sample, caution); line 2
 is the header with the column names in ``COLUMNS`` (stable; new columns are only appended).
-Lists are joined with ``;`` and unknown values are empty cells.
+Lists are joined with ``;`` and unknown values are empty cells. When the input has limits
+(``result["input_limits"]``, e.g. no consequence annotation), they open the comment line.
 """
 from __future__ import annotations
 
@@ -14,14 +15,14 @@ from typing import Iterator, Union
 from irdtriage import __version__
 from irdtriage.atomic import atomic_open
 
-from .common import cautions, criterion_label, met_criteria
+from .common import cautions, criterion_label, input_limits, met_criteria, phenotype_rank
 
 COLUMNS = (
     "finding_id", "gene", "gene_rank", "genotype_fit", "chrom", "pos", "ref", "alt",
     "original_pos", "original_ref", "original_alts", "transcript", "hgvs_c", "hgvs_p",
     "consequence", "zygosity", "genotype", "depth", "genotype_quality", "allele_balance",
     "filters", "quality_flags", "classification", "points", "posterior", "met_criteria",
-    "not_evaluable", "interpretation_status", "cascade_step",
+    "not_evaluable", "interpretation_status", "cascade_step", "phenotype_rank",
 )
 
 
@@ -62,6 +63,7 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "not_evaluable": [c.get("code") for c in f.get("criteria") or [] if c.get("met") is None],
             "interpretation_status": f.get("interpretation_status"),
             "cascade_step": (g.get("cascade_step") or {}).get("id"),
+            "phenotype_rank": phenotype_rank(g.get("phenotype_match") or {}),  # ties as "1–69 of 252"
         }
 
 
@@ -75,6 +77,9 @@ def iter_tsv(result: dict, batch: int = 2000) -> Iterator[str]:
         f" rules {rules.get('name')} {rules.get('version')}; build {result.get('genome_build')};"
         f" sample {sample.get('id')}; CAUTION: {' '.join(cautions(result))}"
     )
+    limits = input_limits(result)  # the input's limits lead the comment line, before anything else
+    if limits:
+        comment = "# " + " ".join(limits) + "; " + comment[2:]
     buf = io.StringIO()
     buf.write(" ".join(comment.split()) + "\n")
     w = csv.writer(buf, delimiter="\t", lineterminator="\n", quoting=csv.QUOTE_MINIMAL)
