@@ -101,4 +101,4 @@ def test_input_limits_and_tied_phenotype_rank_come_out(monkeypatch):
         render_terminal(r, make_console(buf, width=80), quiet=quiet)
         out = buf.getvalue()
         assert out.lstrip().startswith("! INPUT LIMIT (no_consequence_annotation)")
-        assert "phenotype rank 1–69 of 252" in " ".join(out.split())
+        assert "(rank 1–69 of 252)" in " ".join(out.split())

@@ -132,7 +132,7 @@ def test_phenotype_rank_ties_are_shown_as_ties(run):
     for sym in ("RPE65", "RHO"):
         assert genes[sym]["phenotype_match"]["rank_range"] == want, sym
     flat = " ".join(run["stdout"].split())
-    assert flat.count(f"phenotype rank {text}") == 2
+    assert flat.count(f"(rank {text})") == 2
     assert run["html"].count(f"rank {text} panel genes") >= 2
     col = run["tsv"][1].split("\t").index("phenotype_rank")
     assert [line.split("\t")[col] for line in run["tsv"][2:]] == [text, text]

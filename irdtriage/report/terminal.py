@@ -83,7 +83,7 @@ def _gene_line(g: dict) -> Text:
     t.append(f" · pheno {cal:.2f}" if isinstance(cal, (int, float)) else " · pheno n/a")
     place = phenotype_rank(pm)  # the gene's place by phenotype alone (ties shown as a range), when present
     if place:
-        t.append(f" (phenotype rank {place})")
+        t.append(f" (rank {place})")
     return t
 
 
