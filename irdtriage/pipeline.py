@@ -429,6 +429,8 @@ def _phenotype_profile(opts: TriageOptions) -> tuple[models.PhenotypeProfile, li
     excluded, changes_ex = resolve_terms(excluded)
     changes += changes_ex
     for c in changes:
+        if not c.get("label") and labels.get(c["id"]):
+            c["label"] = labels[c["id"]]  # the label the phenopacket gave with an ID the ontology lacks
         if c["action"] == "replaced":
             labels.pop(c["id"], None)  # the label given with the old ID does not name the replacement
     return models.PhenotypeProfile(present=tuple(present), excluded=tuple(excluded), sex=sex,
