@@ -40,7 +40,7 @@ Method
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any, Iterable, Optional
+from typing import Any, Iterable, Mapping, Optional
 
 import numpy as np
 
@@ -67,6 +67,8 @@ PP4_MIN_GENE_PERCENTILE = 0.99
 PP4_MIN_TERMS = 2
 # retinal_fit: share of patient terms under eye/vision, and at least one retina/vision term
 RETINAL_MIN_FRACTION = 0.3
+# Phenotype-only rank: scores closer than this are one tie (scores are stored to 4 decimals).
+RANK_TOLERANCE = 1e-6
 
 _ONTOLOGY = None
 
@@ -259,9 +261,12 @@ class PhenotypeMatcher:
         return out
 
     def ranked(self, profile: PhenotypeProfile) -> list[PhenotypeMatch]:
-        """Matches ordered best first (score; calibrated is monotone in score for one profile)."""
+        """Matches ordered best first by :func:`phenotype_ranks` (score; calibrated is monotone in
+        score for one profile). Tied genes share a rank and are listed by symbol only for a stable
+        order; use :func:`phenotype_ranks` to show the tie."""
         ms = self.match(profile)
-        return sorted(ms.values(), key=lambda m: (-m.score, -getattr(m, "z", 0.0), m.gene))
+        ranks = phenotype_ranks(ms)
+        return sorted(ms.values(), key=lambda m: (ranks[m.gene].low, m.gene))
 
     # ---- whole-phenotype checks --------------------------------------------------------
     def retinal_fit(self, profile: PhenotypeProfile) -> tuple[bool, float, str]:
@@ -282,6 +287,113 @@ class PhenotypeMatcher:
             if last and last.get(match.gene) is match:
                 all_matches = last
         return pp4(match, gene, all_matches)
+
+
+@dataclass(frozen=True)
+class PhenotypeRank:
+    """A gene's rank by phenotype match alone: ``low``..``high`` of ``of`` genes (low == high
+    when no other gene has the same score)."""
+
+    low: int
+    high: int
+    of: int
+
+    @property
+    def tied(self) -> bool:
+        return self.high > self.low
+
+
+def competition_ranks(scores: Mapping[str, float], tolerance: float = RANK_TOLERANCE) -> dict[str, PhenotypeRank]:
+    """Ranks with ties kept (1 = best, higher score is better).
+
+    Scores are sorted best first and cut into tie groups: a score joins the current group when
+    it is within ``tolerance`` of the group's best score. Every member of a group gets
+    ``low`` = 1 + the number of genes in better groups ("1224" competition ranking) and
+    ``high`` = ``low`` + group size - 1. The order of the genes never decides a rank.
+    """
+    items = sorted(scores.items(), key=lambda kv: -float(kv[1]))
+    n = len(items)
+    out: dict[str, PhenotypeRank] = {}
+    i = 0
+    while i < n:
+        head = float(items[i][1])
+        j = i
+        while j < n and head - float(items[j][1]) <= tolerance:
+            j += 1
+        for sym, _ in items[i:j]:
+            out[sym] = PhenotypeRank(i + 1, j, n)
+        i = j
+    return out
+
+
+def phenotype_ranks(matches: Mapping[str, PhenotypeMatch]) -> dict[str, PhenotypeRank]:
+    """Each gene's rank by phenotype match alone (see :func:`competition_ranks`); the one
+    ordering used by the matcher, the pipeline and every output."""
+    return competition_ranks({sym: m.score for sym, m in matches.items()})
+
+
+# ---- checking the patient's HPO IDs against the bundled ontology ---------------------
+def _plain_name(name: str) -> str:
+    return name[len("obsolete "):] if name.lower().startswith("obsolete ") else name
+
+
+def resolve_terms(ids: Iterable[str]) -> tuple[list[str], list[dict[str, Any]]]:
+    """Map well-formed HPO IDs onto the bundled ontology release.
+
+    Returns (IDs to match with, changes). An obsolete ID with a replacement is swapped for it
+    (change ``action: "replaced"``); an ID the release does not know (newer than the release,
+    or mistyped) or an obsolete ID without a replacement is left out (``action: "dropped"``).
+    Each change names the old ID, its label when known, and why; the caller reports them.
+    Order is kept and duplicates (also after replacement) are dropped.
+    """
+    ont = get_ontology()
+    version = ont.version()
+    kept: list[str] = []
+    changes: list[dict[str, Any]] = []
+    for tid in ids:
+        try:
+            term = ont.get_hpo_object(tid)
+        except (RuntimeError, KeyError, ValueError):
+            changes.append({"id": tid, "label": "", "action": "dropped", "replaced_by": None,
+                            "replaced_by_label": None,
+                            "reason": f"not in the bundled HPO release {version} (newer than the release, or mistyped)"})
+            continue
+        new = term.id
+        if term.is_obsolete:
+            repl = term.replaced_by
+            if not repl:
+                changes.append({"id": tid, "label": _plain_name(term.name), "action": "dropped",
+                                "replaced_by": None, "replaced_by_label": None,
+                                "reason": f"obsolete in HPO {version} with no replacement term"})
+                continue
+            new = repl
+            changes.append({"id": tid, "label": _plain_name(term.name), "action": "replaced", "replaced_by": repl,
+                            "replaced_by_label": ont.get_hpo_object(repl).name,
+                            "reason": f"obsolete in HPO {version}"})
+        if new not in kept:
+            kept.append(new)
+    return kept, changes
+
+
+def describe_term_change(c: Mapping[str, Any]) -> str:
+    """One sentence for a change from :func:`resolve_terms` (used as a result warning)."""
+    old = f"{c['id']}" + (f" ({c['label']})" if c.get("label") else "")
+    if c.get("action") == "replaced":
+        return (f"HPO term {old} is {c.get('reason')}: replaced by {c['replaced_by']} "
+                f"({c.get('replaced_by_label') or ''})")
+    return f"HPO term {old} left out of the phenotype match: {c.get('reason')}"
+
+
+def term_labels(ids: Iterable[str]) -> dict[str, str]:
+    """HPO labels from the bundled ontology for the IDs it knows."""
+    ont = get_ontology()
+    out: dict[str, str] = {}
+    for tid in ids:
+        try:
+            out[tid] = _plain_name(ont.get_hpo_object(tid).name)
+        except (RuntimeError, KeyError, ValueError):
+            continue
+    return out
 
 
 def _under(tid: str, root: str) -> bool:

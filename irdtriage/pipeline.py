@@ -87,7 +87,11 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     rules = load_rules(opts.rules_path)
 
     # 2. phenotype input ------------------------------------------------------------
-    profile = _phenotype_profile(opts)
+    profile, term_changes = _phenotype_profile(opts)
+    if term_changes:
+        from .phenotype import describe_term_change
+
+        warnings.extend(describe_term_change(c) for c in term_changes)
     explicit_sex = normalise_sex(opts.sex) if opts.sex is not None else None
 
     # 3. family ---------------------------------------------------------------------
@@ -312,13 +316,35 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     assign_interpretation_status(ranked, call)
 
     # 13. result ----------------------------------------------------------------------
-    return result_mod.build_result(
+    from .phenotype import phenotype_ranks
+
+    limits = input_limits(layouts)
+    res = result_mod.build_result(
         vcf_path=vcf_path, opts=opts, started=started, panel=panel, rules=rules, intake=intake,
         proband=proband, sex=sex, sex_source=sex_source, inferred_sex=sex_inf.sex,
         mother=mother, father=father, affected=affected, profile=profile, retinal=retinal,
         findings=findings, ranked=ranked, call=call, warnings=warnings, counts_extra=counts_extra,
-        phenotype_ranks=_phenotype_ranks(matches),
+        phenotype_ranks=phenotype_ranks(matches),
     )
+    res["phenotype"]["term_changes"] = term_changes
+    # what the input could not support, first in the result so every output shows it first
+    return {"schema_version": res.pop("schema_version"), "input_limits": limits, **res}
+
+
+NO_ANNOTATION = "no_consequence_annotation"
+
+
+def input_limits(layouts: dict) -> list[dict[str, str]]:
+    """Limits of the input that every output must show before anything else: ``[{code, message}]``
+    (stable codes). A VCF without consequence annotation (no CSQ/ANN in INFO) leaves every
+    allele's consequence, HGVS names and annotated population frequency unknown."""
+    if layouts:
+        return []
+    return [{"code": NO_ANNOTATION,
+             "message": "The VCF has no consequence annotation (no CSQ or ANN in INFO): consequences and HGVS "
+                        "names are unknown, and an allele whose population frequency is unknown as well is never "
+                        "called causative or a candidate. Annotate the VCF (consequences and gnomAD frequencies) "
+                        "and run again."}]
 
 
 # Consequences that on their own say nothing about the protein or splicing (Sequence Ontology terms).
@@ -370,12 +396,6 @@ def _complete_fits(assessments: dict[str, Any], by_gene: dict[str, list[models.F
     return out
 
 
-def _phenotype_ranks(matches: dict[str, models.PhenotypeMatch]) -> dict[str, int]:
-    """Each panel gene's rank by phenotype match alone (1 = best; ties broken by symbol)."""
-    order = sorted(matches.values(), key=lambda m: (-m.score, m.gene))
-    return {m.gene: i for i, m in enumerate(order, 1)}
-
-
 def _proband_hint(vcf_path: str, profile: models.PhenotypeProfile, pedigree: Any) -> Optional[str]:
     """No --sample given for a multi-sample VCF: the phenopacket subject when it is a VCF sample,
     else the PED's only affected individual whose parents are both in the VCF; None otherwise
@@ -401,7 +421,12 @@ def _proband_hint(vcf_path: str, profile: models.PhenotypeProfile, pedigree: Any
     return None
 
 
-def _phenotype_profile(opts: TriageOptions) -> models.PhenotypeProfile:
+def _phenotype_profile(opts: TriageOptions) -> tuple[models.PhenotypeProfile, list[dict[str, Any]]]:
+    """The person's HPO terms, and the changes made to fit them to the bundled ontology
+    (obsolete IDs replaced, unknown IDs left out; see phenotype.resolve_terms). Malformed
+    IDs are input errors."""
+    from .phenotype import resolve_terms
+
     present: list[str] = []
     excluded: list[str] = []
     sex = None
@@ -411,20 +436,31 @@ def _phenotype_profile(opts: TriageOptions) -> models.PhenotypeProfile:
     if opts.phenopacket:
         from .phenopacket_in import read_phenopacket
 
-        p = read_phenopacket(opts.phenopacket)
+        p = read_phenopacket(opts.phenopacket, validate_terms=False)  # IDs are checked below
         present += list(p.present)
         excluded += list(p.excluded)
         sex, subject = p.sex, p.subject_id
         labels.update(p.labels)
         source.append(str(opts.phenopacket))
     if opts.hpo:
-        from .phenopacket_in import parse_hpo_terms
+        from .phenopacket_in import HPO_ID, _tokens
 
-        terms = parse_hpo_terms(opts.hpo)
-        present += [t for t in terms if t not in present]
+        for tok, path, line in _tokens(opts.hpo, "--hpo"):
+            if not HPO_ID.match(tok):
+                raise InputError(f"malformed HPO term ID {tok!r} (expected HP: followed by 7 digits)", path, line)
+            if tok not in present:
+                present.append(tok)
         source.append("--hpo")
+    present, changes = resolve_terms(present)
+    excluded, changes_ex = resolve_terms(excluded)
+    changes += changes_ex
+    for c in changes:
+        if not c.get("label") and labels.get(c["id"]):
+            c["label"] = labels[c["id"]]  # the label the phenopacket gave with an ID the ontology lacks
+        if c["action"] == "replaced":
+            labels.pop(c["id"], None)  # the label given with the old ID does not name the replacement
     return models.PhenotypeProfile(present=tuple(present), excluded=tuple(excluded), sex=sex,
-                                   subject_id=subject, source=", ".join(source), labels=labels)
+                                   subject_id=subject, source=", ".join(source), labels=labels), changes
 
 
 def _relatives(pedigree: Any, proband: str, samples: Iterable[str]):

@@ -56,6 +56,13 @@ Case call (GA4GH Phenopacket status words)
   phenotype match (P/LP single hits also count when no phenotype was given).
 * ``UNSOLVED``: nothing of the above.
 
+Alleles that cannot be assessed: an allele whose consequence is unknown (no CSQ/ANN
+annotation) *and* whose population frequency is unknown (BA1, BS1, BS2 and PM2 all not
+evaluable) could be a common benign allele as easily as a null one, so no hypothesis built on
+it is a solving or candidate explanation. Such a hypothesis is still ranked, but the case is
+at best IN_PROGRESS, its alleles keep UNKNOWN_STATUS, and the first next step asks for an
+annotated VCF.
+
 Per-finding statuses: CAUSATIVE for the P/LP alleles of the solving hypothesis;
 CONTRIBUTORY for the P/LP alleles of a second complete, phenotype-fitting hypothesis (a
 possible second diagnosis, rare); CANDIDATE for the alleles of candidate hypotheses;
@@ -112,6 +119,31 @@ class CaseCall:
 # ---------------------------------------------------------------------------
 def _cls(f: Finding) -> Optional[str]:
     return f.classification.classification if f.classification is not None else None
+
+
+FREQUENCY_CODES = ("BA1", "BS1", "BS2", "PM2")
+
+
+def consequence_unknown(f: Finding) -> bool:
+    """No consequence annotation for this allele (the VCF had no CSQ/ANN for it)."""
+    terms = tuple(f.annotation.consequence or ())
+    return f.annotation.source == "none" and (not terms or terms == ("not annotated",))
+
+
+def frequency_unknown(f: Finding) -> bool:
+    """The frequency criteria were evaluated and none could be (no population data)."""
+    crit = {c.code: c for c in f.criteria}
+    return all(code in crit for code in FREQUENCY_CODES) and all(crit[c].met is None for c in FREQUENCY_CODES)
+
+
+def unassessable(f: Finding) -> bool:
+    """Consequence and population frequency both unknown: the allele cannot support an explanation."""
+    return consequence_unknown(f) and frequency_unknown(f)
+
+
+def blocked(h: GeneHypothesis) -> bool:
+    """The hypothesis's genotype fit rests on at least one allele that cannot be assessed."""
+    return any(unassessable(f) for f in fit_findings(h))
 
 
 def fit_findings(h: GeneHypothesis) -> list[Finding]:
@@ -177,6 +209,9 @@ def _reason(h: GeneHypothesis, gene: Optional[Gene]) -> str:
         ph = f"phenotype match {m.calibrated:.2f}"
         if m.conflicting_terms:
             ph += f", conflicting: {', '.join(m.conflicting_terms)}"
+    if blocked(h):
+        ph += "; not an explanation: consequence and population frequency unknown for " + ", ".join(
+            f.id for f in fs if unassessable(f))
     return (f"{h.genotype_fit}{phase} in a {inh} gene; alleles: {alleles}; {ph}; score "
             f"{1 - PHENOTYPE_SHARE:.1f} x genotype ({_fit_weight(h, gene):.2f} x {_class_weight(h):.2f}) + "
             f"{PHENOTYPE_SHARE:.1f} x phenotype {_pheno_weight(h):.3f} = {h.score:.3f}")
@@ -212,10 +247,13 @@ def _all_strong(h: GeneHypothesis) -> bool:
 
 
 def _solving(h: GeneHypothesis, fits_retina) -> bool:
-    return h.genotype_fit in COMPLETE_FITS and _all_strong(h) and _pheno_state(h, fits_retina) is True
+    return (h.genotype_fit in COMPLETE_FITS and _all_strong(h) and _pheno_state(h, fits_retina) is True
+            and not blocked(h))
 
 
 def _candidate(h: GeneHypothesis, fits_retina) -> bool:
+    if blocked(h):
+        return False
     p = _pheno_state(h, fits_retina)
     if h.genotype_fit in COMPLETE_FITS:
         return not _solving(h, fits_retina) and bool(fit_findings(h))
@@ -249,7 +287,13 @@ def _phase_note(h: GeneHypothesis) -> str:
 def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[bool]) -> CaseCall:
     solving = [h for h in ranked if _solving(h, phenotype_fits_retina)]
     candidates = [h for h in ranked if _candidate(h, phenotype_fits_retina)]
+    unassessed = [h for h in ranked if h.genotype_fit != "no qualifying finding" and blocked(h)]
     steps: list[str] = []
+    if unassessed:
+        n = sum(1 for h in unassessed for f in fit_findings(h) if unassessable(f))
+        steps.append(f"Annotate the VCF with consequences (CSQ or ANN in INFO, with HGVS names) and population "
+                     f"frequencies (gnomAD fields, or --population-vcf) and run again: {n} allele(s) in "
+                     f"{', '.join(h.symbol for h in unassessed)} could not be assessed.")
 
     if solving:
         top = solving[0]
@@ -266,6 +310,11 @@ def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[
         status = "IN_PROGRESS"
         summary = f"Candidate explanation, not yet complete: {_describe(top)} - {_missing(top, phenotype_fits_retina)}."
         focus = candidates[:3]
+    elif unassessed:
+        status = "IN_PROGRESS"
+        summary = (f"Not assessable yet: {_describe(unassessed[0])} - consequence and population frequency unknown, "
+                   f"so no allele can be called causative or a candidate until the VCF is annotated.")
+        focus = []
     else:
         status = "UNSOLVED"
         n = sum(1 for h in ranked if h.findings)

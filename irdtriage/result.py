@@ -194,8 +194,13 @@ def _protein_position(extra: dict[str, Any]) -> Optional[str]:
 CLASS_ORDER = {c: i for i, c in enumerate(models.CLASSES)}
 
 
+def _pheno_rank(r: Any) -> dict[str, Any]:
+    """phenotype.PhenotypeRank -> rank (first place of a tie), genes_ranked and rank_range {from, to, of}."""
+    return {"rank": r.low, "genes_ranked": r.of, "rank_range": {"from": r.low, "to": r.high, "of": r.of}}
+
+
 def gene_dict(h: models.GeneHypothesis, panel: models.Panel,
-              phenotype_ranks: Optional[dict[str, int]] = None) -> dict[str, Any]:
+              phenotype_ranks: Optional[dict[str, Any]] = None) -> dict[str, Any]:
     gene = panel.genes[h.symbol]
     step = panel.cascade.get(gene.cascade_step)
     classes = [f.classification.classification for f in h.findings if f.classification]
@@ -221,8 +226,7 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel,
             "score": _round(pm.score), "calibrated": _round(pm.calibrated),
             "matched_terms": _jsonable(pm.matched_terms), "conflicting_terms": list(pm.conflicting_terms),
             "summary": pm.summary,
-            **({"rank": phenotype_ranks[h.symbol], "genes_ranked": len(phenotype_ranks)}
-               if phenotype_ranks and h.symbol in phenotype_ranks else {})},
+            **(_pheno_rank(phenotype_ranks[h.symbol]) if phenotype_ranks and h.symbol in phenotype_ranks else {})},
         "strongest_class": strongest,
         "score": _round(h.score),
         "reason": h.reason,

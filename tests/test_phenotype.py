@@ -127,3 +127,57 @@ def test_pp4_accepts_gene_object_and_uses_last_match(matcher):
     ms = matcher.match(PhenotypeProfile(present=("HP:0000478",)))
     r = matcher.pp4(ms["RHO"], g)
     assert r.met is False and "RHO" in r.reason and "Gene(" not in r.reason
+
+
+# ---- phenotype-only rank: ties kept ---------------------------------------------------
+def test_competition_ranks_keep_ties():
+    # Standard competition ranking ("1224"; common practice): equal scores share the first
+    # place of their group, the next group starts after all of them.
+    from irdtriage.phenotype import competition_ranks
+
+    r = competition_ranks({"D": 1.0, "A": 3.0, "C": 2.0, "B": 2.0, "E": 2.0 - 1e-9})
+    assert {g: (x.low, x.high, x.of) for g, x in r.items()} == {
+        "A": (1, 1, 5), "B": (2, 4, 5), "C": (2, 4, 5), "E": (2, 4, 5), "D": (5, 5, 5)}
+    # names never decide a place: renaming the genes leaves the places unchanged
+    r2 = competition_ranks({"Z": 1.0, "Y": 3.0, "X": 2.0, "W": 2.0})
+    assert (r2["X"].low, r2["X"].high) == (r2["W"].low, r2["W"].high) == (2, 3)
+
+
+def test_genes_annotated_with_the_single_term_tie_in_matcher_order(matcher, ont):
+    # One patient term, HP:0000510 Rod-cone dystrophy: a gene annotated with it (or a
+    # descendant) scores its IC exactly, so these genes tie; read from hpo3's annotations.
+    from irdtriage.phenotype import phenotype_ranks
+
+    def closure(sym):
+        out = set()
+        for i in _gene(ont, sym).hpo:
+            t = ont.get_hpo_object(i)
+            out.add(t.id)
+            out.update(p.id for p in t.all_parents)
+        return out
+
+    tied = sorted(g for g in GENES if "HP:0000510" in closure(g))
+    assert len(tied) >= 2  # RHO, RP1, ABCA4 ... in this ontology release
+    ms = matcher.match(PhenotypeProfile(present=("HP:0000510",)))
+    ranks = phenotype_ranks(ms)
+    for g in tied:
+        assert (ranks[g].low, ranks[g].high, ranks[g].of) == (1, len(tied), len(GENES)), g
+    for g in set(GENES) - set(tied):
+        assert ranks[g].low > len(tied), g
+    # the matcher's own order is the same ordering: the tied genes first, then the rest
+    order = [m.gene for m in matcher.ranked(PhenotypeProfile(present=("HP:0000510",)))]
+    assert sorted(order[: len(tied)]) == tied
+    assert [ranks[g].low for g in order] == sorted(ranks[g].low for g in order)
+
+
+def test_resolve_terms_replaces_obsolete_and_drops_unknown():
+    # HPO (hp.obo): HP:0000547 Tapetoretinal degeneration is obsolete, replaced_by HP:0000510
+    # (the pair used in tests/test_phenopacket_in.py). HP:9999999 is not an HPO term.
+    from irdtriage.phenotype import resolve_terms
+
+    kept, changes = resolve_terms(["HP:0000662", "HP:0000547", "HP:9999999", "HP:0000510"])
+    assert kept == ["HP:0000662", "HP:0000510"]
+    by_id = {c["id"]: c for c in changes}
+    assert by_id["HP:0000547"]["action"] == "replaced" and by_id["HP:0000547"]["replaced_by"] == "HP:0000510"
+    assert by_id["HP:0000547"]["label"] == "Tapetoretinal degeneration"
+    assert by_id["HP:9999999"]["action"] == "dropped" and by_id["HP:9999999"]["replaced_by"] is None

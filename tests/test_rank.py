@@ -275,3 +275,35 @@ def test_published_cases_genotype_fit_and_rank(tmp_path):
             assert ranked[0].symbol == gsym, path.name
         checked += 1
     assert checked >= 100, (checked, skipped)
+
+
+# ---------------------------------------------------------------------------
+# Alleles whose consequence and population frequency are both unknown (unannotated VCF)
+# cannot be an explanation: population data and the predicted consequence are the first
+# evidence ACMG/AMP 2015 (Richards et al.) weighs, and without both the allele may be a
+# common benign one. The case is at best IN_PROGRESS and the allele stays UNKNOWN_STATUS.
+# ---------------------------------------------------------------------------
+def _frequency_criteria(met):
+    from irdtriage.models import CriterionResult
+
+    return [CriterionResult(code, met, "Supporting" if met and code == "PM2" else None, "test")
+            for code in ("BA1", "BS1", "BS2", "PM2")]
+
+
+def test_unannotated_allele_without_frequency_is_not_an_explanation():
+    g = gene("RPE65")
+    f = finding("H", 10, [call("KID", (1, 1))], cls="Pathogenic", gene="RPE65")  # no consequence annotation
+    f.criteria = _frequency_criteria(None)  # no population data either
+    h = hyp(g, [f], match=pheno("RPE65", 0.9))
+    assert h.genotype_fit == "homozygous"
+    ranked = rank_hypotheses([h], panel(g))
+    cc = case_call(ranked, True)
+    assert cc.status == "IN_PROGRESS" and "Candidate explanation" not in cc.summary
+    assert cc.next_steps[0].startswith("Annotate the VCF")
+    assert assign_interpretation_status(ranked, cc) == {"H": "UNKNOWN_STATUS"}
+    # the same allele with its frequency known (PM2 met) is assessable again: SOLVED
+    f.criteria = _frequency_criteria(False)[:3] + _frequency_criteria(True)[3:]
+    ranked = rank_hypotheses([h], panel(g))
+    cc = case_call(ranked, True)
+    assert cc.status == "SOLVED"
+    assert assign_interpretation_status(ranked, cc) == {"H": "CAUSATIVE"}

@@ -32,6 +32,30 @@ def cautions(result: dict) -> list[str]:
     return out
 
 
+def input_limits(result: dict) -> list[str]:
+    """The input's limits (``result["input_limits"]``), one line each with its code, for the top of every output."""
+    out = []
+    for lim in result.get("input_limits") or []:
+        if isinstance(lim, dict) and lim.get("message"):
+            out.append(f"INPUT LIMIT ({lim.get('code', '?')}): {lim['message']}")
+    return out
+
+
+def phenotype_rank(pm: dict) -> Optional[str]:
+    """The gene's place by phenotype match alone: "1–69 of 252" for a tie, "3 of 252" alone; None if absent.
+    Reads ``rank_range`` (ties kept); results written before it existed give ``rank`` only."""
+    rr = pm.get("rank_range")
+    if isinstance(rr, dict) and isinstance(rr.get("from"), int):
+        lo, hi, of = rr["from"], rr.get("to") or rr["from"], rr.get("of")
+    elif isinstance(pm.get("rank"), int):
+        lo = hi = pm["rank"]
+        of = pm.get("genes_ranked")
+    else:
+        return None
+    place = f"{lo}–{hi}" if hi > lo else f"{lo}"
+    return f"{place} of {of}" if isinstance(of, int) else place
+
+
 def met_criteria(finding: dict) -> list[dict]:
     return [c for c in finding.get("criteria") or [] if c.get("met") is True]
 

@@ -27,6 +27,8 @@ from .common import (
     fmt,
     gene_findings,
     genotype_fit_label,
+    input_limits,
+    phenotype_rank,
     prose_notes,
     strip_provenance,
     zygosity_label,
@@ -208,11 +210,11 @@ def _genes_table(result: dict) -> str:
 
 
 def _pheno_rank(pm: dict) -> str:
-    """'rank 3 of 270 panel genes' when the result gives the gene's rank by phenotype alone."""
-    rank, of = pm.get("rank"), pm.get("genes_ranked")
-    if not isinstance(rank, int):
+    """'rank 3 of 270 panel genes' ('rank 1–69 of 270' for a tie) when the result gives the gene's rank by phenotype alone."""
+    place = phenotype_rank(pm)
+    if not place:
         return ""
-    return f"rank {rank} of {of} panel genes" if isinstance(of, int) else f"rank {rank} among the panel genes"
+    return f"rank {place} panel genes" if " of " in place else f"rank {place} among the panel genes"
 
 
 def _pheno_cell(pm: dict) -> str:
@@ -397,6 +399,7 @@ def render_html(result: dict, cascade_steps: Optional[Iterable[dict]] = None) ->
            '<meta name="viewport" content="width=device-width, initial-scale=1">'
            "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; img-src data:\">"
            f"<title>irdtriage case report — {e(sample.get('id'))}</title><style>{CSS}</style></head><body>"]
+    out += [f'<div class="caution" role="alert"><p><b>{e(lim)}</b></p></div>' for lim in input_limits(result)]
     out.append(f'<header><h1>Inherited retinal disease gene triage — case {e(sample.get("id"))}</h1>'
                f'<p class="sub">Decision-support report written by irdtriage {e(__version__)} from result schema {e(result.get("schema_version"))}.</p>')
     out.append(_caution_box(result))

@@ -1,5 +1,6 @@
-"""Terminal summary of one result (rich): case line first, ranked gene hypotheses with their
-findings, a text drawing of the light-response cascade, then warnings and the caution.
+"""Terminal summary of one result (rich): the input's limits (if any) first, then the case line,
+ranked gene hypotheses with their findings, a text drawing of the light-response cascade, then
+warnings and the caution.
 
 Patient-provided strings are put into rich ``Text`` objects (never parsed as markup), so a
 sample id such as ``[bold]x`` prints literally.
@@ -23,6 +24,8 @@ from .common import (
     criterion_label,
     fmt,
     gene_findings,
+    input_limits,
+    phenotype_rank,
 )
 
 MAX_WIDTH = 100
@@ -78,10 +81,28 @@ def _gene_line(g: dict) -> Text:
     t.append(f" · {g.get('genotype_fit', '?')}")
     cal = pm.get("calibrated")
     t.append(f" · pheno {cal:.2f}" if isinstance(cal, (int, float)) else " · pheno n/a")
-    if isinstance(pm.get("rank"), int):  # the gene's rank by phenotype alone, when the result has it
-        of = pm.get("genes_ranked")
-        t.append(f" (#{pm['rank']}" + (f"/{of})" if isinstance(of, int) else ")"))
+    place = phenotype_rank(pm)  # the gene's place by phenotype alone (ties shown as a range), when present
+    if place:
+        t.append(f" (rank {place})")
     return t
+
+
+def _class_method(f: dict) -> Optional[str]:
+    """Which combining method gave the reported class, when the three methods disagree."""
+    cls = f.get("classification")
+    pcls, bcls = f.get("point_class"), f.get("bayes_class")
+    if not cls or (pcls in (None, cls) and bcls in (None, cls)):
+        return None
+    parts = []
+    if pcls not in (None, cls):
+        pts = f.get("points")
+        parts.append(f"points (Tavtigian 2020) give {CLASS_SHORT.get(pcls, pcls)}"
+                     + (f" at {pts:+d}" if isinstance(pts, int) else ""))
+    if bcls not in (None, cls):
+        post = f.get("posterior")
+        parts.append(f"posterior (Tavtigian 2018) gives {CLASS_SHORT.get(bcls, bcls)}"
+                     + (f" at {post:.3f}" if isinstance(post, (int, float)) else ""))
+    return f"class from the ACMG/AMP 2015 table; {', '.join(parts)}"
 
 
 def _finding_line(f: dict) -> Text:
@@ -100,6 +121,9 @@ def _finding_line(f: dict) -> Text:
     t.append(criteria_compact(f))
     if f.get("quality_flags"):
         t.append("  quality: " + ", ".join(f["quality_flags"]), style=ST_DIM)
+    method = _class_method(f)
+    if method:
+        t.append(f"  ({method})", style=ST_DIM)
     return t
 
 
@@ -176,6 +200,8 @@ def render_terminal(
     p = console.print
     case = result.get("case") or {}
     genes = result.get("genes") or []
+    for lim in input_limits(result):  # what the input could not support comes before anything else
+        _ind(console, Text("! " + lim, style=ST_CAUTION), hang=2)
     _ind(console, _case_line(result))
     if quiet:
         if genes:

@@ -6,6 +6,8 @@ metadata (tool, panel, rules, build, sample) is in result.json, and the clinical
 last column (``caution``) of every row, so it travels with any row copied out.
 ``genotype_fit`` and ``cascade_step`` hold reader labels (``common.genotype_fit_label``, the
 step title from panels/cascade.yaml); their keys are in ``genotype_fit_id`` / ``cascade_step_id``.
+``input_limits`` (every row) names what the input could not support (e.g. no consequence
+annotation), and ``phenotype_rank`` shows ties as ranges ("1–69 of 252").
 Lists are joined with ``;`` and unknown values are empty cells.
 """
 from __future__ import annotations
@@ -18,7 +20,7 @@ from typing import Iterator, Union
 from irdtriage import CAUTION
 from irdtriage.atomic import atomic_open
 
-from .common import criterion_label, genotype_fit_label, met_criteria
+from .common import criterion_label, genotype_fit_label, input_limits, met_criteria, phenotype_rank
 
 COLUMNS = (
     "finding_id", "gene", "gene_rank", "genotype_fit", "chrom", "pos", "ref", "alt",
@@ -27,6 +29,7 @@ COLUMNS = (
     "filters", "quality_flags", "classification", "points", "posterior", "met_criteria",
     "not_evaluable", "interpretation_status", "cascade_step",
     "cascade_step_id", "genotype_fit_id", "protein_accession", "ad", "caution",
+    "phenotype_rank", "input_limits",
 )
 
 
@@ -50,6 +53,7 @@ def iter_rows(result: dict) -> Iterator[dict]:
         for fid in g.get("findings") or []:
             gene_of[fid] = g
     caution = " ".join(CAUTION.split())
+    limits = input_limits(result)  # what the input could not support, repeated on every row
     for f in result.get("findings") or []:
         g = gene_of.get(f.get("id")) or {}
         o = f.get("original") or {}
@@ -73,6 +77,8 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "cascade_step_id": step.get("id"), "genotype_fit_id": fit,
             "protein_accession": f.get("protein_accession"), "ad": None if f.get("ad") is None else ["." if x is None else x for x in f["ad"]],
             "caution": caution,
+            "phenotype_rank": phenotype_rank(g.get("phenotype_match") or {}),  # ties as "1–69 of 252"
+            "input_limits": limits,
         }
 
 
