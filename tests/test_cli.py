@@ -52,8 +52,11 @@ def test_demo_writes_every_output(demo_out: Path):
     assert html.lstrip().lower().startswith("<!doctype html") and html.rstrip().endswith("</html>")
     assert first in " ".join(html.split())
     rows = (demo_out / "findings.tsv").read_text(encoding="utf-8").splitlines()
-    assert rows[0].startswith("#") and "CAUTION" in rows[0]
-    assert [r.split("\t")[0] for r in rows[2:]] == ids
+    header = rows[0].split("\t")  # a table from line 1 (no comment line), the caution on every row
+    assert header[0] == "finding_id"
+    caution_col = header.index("caution")
+    assert all(r.split("\t")[caution_col] == first for r in rows[1:])
+    assert [r.split("\t")[0] for r in rows[1:]] == ids
     from google.protobuf.json_format import Parse
     from phenopackets import Phenopacket
 
