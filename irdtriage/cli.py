@@ -156,6 +156,17 @@ def build_parser() -> argparse.ArgumentParser:
                    help=f"formats to write from {','.join(FORMATS)} (default: all)")
     r.add_argument("--out", metavar="DIR", help="output folder (default: beside the result)")
     r.add_argument("--phenopacket", metavar="FILE", help="input phenopacket to extend with interpretations")
+
+    c = sub.add_parser("classify", help="class, rule, points and posterior for criteria as curators write them",
+                       description="Combine ACMG/AMP criteria (e.g. \"PVS1, PM2_Supporting, PM3_Strong\") into a "
+                                   "class with the rule set of panels/combining.yaml.", epilog=CAUTION)
+    c.add_argument("criteria", nargs="?", help="met criteria, comma-separated (PM2_Supporting, BS1_Stand Alone, PVS1 ...)")
+    c.add_argument("--tsv", metavar="FILE", help="classify every row of a TSV with a criteria_met column (and gene "
+                                                 "when present); writes the rows with class, rule_set, rule, points "
+                                                 "and posterior added to standard output (.gz read too)")
+    cg = c.add_mutually_exclusive_group()
+    cg.add_argument("--gene", help="use this gene's rule set (default: the default rule set)")
+    cg.add_argument("--rule-set", metavar="NAME", help="use this rule set by name")
     return p
 
 
@@ -179,6 +190,8 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
             return cmd_explain(args)
         if args.command == "report":
             return cmd_report(args)
+        if args.command == "classify":
+            return cmd_classify(args)
     except InputError as e:
         print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
         return 2
@@ -419,6 +432,33 @@ def cmd_report(args) -> int:
             written = set(output_names(result, formats))
             tx.carry_over(sorted(p.name for p in tx.out.iterdir() if p.name not in written and is_output_file(p)))
     render_written(_console(), [tx.final_path(p) for p in staged.values()])
+    return 0
+
+
+def cmd_classify(args) -> int:
+    from .classify import classify, classify_tsv, parse_criteria, pick_rule_set, render_text
+    from .acmg.rulesets import load_combining
+
+    if (args.criteria is None) == (args.tsv is None):
+        raise InputError("give either criteria text or --tsv FILE (one of the two)")
+    combining = load_combining()
+    if args.rule_set:
+        combining.get(args.rule_set)  # an unknown name is an input error before any work
+    if args.tsv:
+        import gzip
+
+        if not os.path.exists(args.tsv):
+            raise InputError("TSV file not found", args.tsv)
+        opener = gzip.open if args.tsv.endswith(".gz") else open
+        try:
+            with opener(args.tsv, "rt", encoding="utf-8", newline="") as fh:
+                text = classify_tsv(fh, args.tsv, combining, gene=args.gene, rule_set=args.rule_set)
+        except (OSError, UnicodeDecodeError, EOFError) as e:
+            raise InputError(f"cannot read TSV: {e}", args.tsv) from None
+        sys.stdout.write(text)
+        return 0
+    res = classify(parse_criteria(args.criteria), pick_rule_set(combining, args.gene, args.rule_set))
+    sys.stdout.write(render_text(res))
     return 0
 
 

@@ -228,6 +228,7 @@ class Classification:
     bayes_class: str
     note: str = ""  # explanation when the methods disagree
     rule: str = ""  # which Table 5 rule fired
+    rule_set: str = ""  # name of the combining rule set used (panels/combining.yaml)
 
 
 @dataclass

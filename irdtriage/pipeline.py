@@ -74,6 +74,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .acmg import engine as acmg_engine
     from .acmg.combine import combine
     from .acmg.rules import load_rules
+    from .acmg.rulesets import load_combining
     from .consequence.annotations import pick_annotation
     from .evidence import EvidenceConfig, EvidenceSources, collect_evidence
     from .panel import GeneLocator, load_panel
@@ -85,6 +86,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     # 1. panel and rules ------------------------------------------------------------
     panel = load_panel(opts.panel_path, genes=opts.genes)
     rules = load_rules(opts.rules_path)
+    combining = load_combining()
 
     # 2. phenotype input ------------------------------------------------------------
     profile, term_changes = _phenotype_profile(opts)
@@ -230,7 +232,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
             base = automated[id(f)] = acmg_engine.automated(f, gene, rules)
         f.criteria = acmg_engine.evaluate(f, gene, rules, extra=extra,
                                           curated=curated.get(f.variant.key, []), base=base)
-        f.classification = combine(f.criteria)
+        f.classification = combine(f.criteria, combining.for_gene(f.gene))
 
     for f in findings:
         classify(f, pheno_criteria(f))
@@ -320,7 +322,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     limits = input_limits(layouts)
     res = result_mod.build_result(
-        vcf_path=vcf_path, opts=opts, started=started, panel=panel, rules=rules, intake=intake,
+        vcf_path=vcf_path, opts=opts, started=started, panel=panel, rules=rules, combining=combining, intake=intake,
         proband=proband, sex=sex, sex_source=sex_source, inferred_sex=sex_inf.sex,
         mother=mother, father=father, affected=affected, profile=profile, retinal=retinal,
         findings=findings, ranked=ranked, call=call, warnings=warnings, counts_extra=counts_extra,

@@ -122,6 +122,7 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str],
         "classification": c.classification if c else None,
         "rule_class": c.rule_class if c else None,
         "rule": c.rule if c else None,
+        "rule_set": (c.rule_set or None) if c else None,
         "points": c.points if c else None,
         "point_class": c.point_class if c else None,
         "posterior": _round(c.posterior, 6) if c else None,
@@ -174,6 +175,19 @@ def _criteria_list(f: models.Finding) -> list[dict[str, Any]]:
     memo: dict[int, Any] = {}
     return [{"code": cr.code, "met": cr.met, "strength": cr.strength, "reason": cr.reason,
              "evidence": _jsonable(cr.evidence, memo), "source": cr.source} for cr in f.criteria]
+
+
+def combining_dict(combining, findings) -> dict[str, Any]:
+    """result["rules"]["combining"]: the combining file and every rule set the findings used
+    (name, version, content hash), so a report can say which rules produced each class."""
+    if combining is None:
+        return {}
+    used = sorted({f.classification.rule_set for f in findings if f.classification and f.classification.rule_set})
+    return {"combining": {
+        "name": combining.name, "version": combining.version, "sha256": combining.sha256,
+        "default": combining.rule_sets[combining.default].ref(),
+        "rule_sets": [combining.rule_sets[n].ref() for n in used if n in combining.rule_sets],
+    }}
 
 
 PROTEIN_POSITION_KEYS = ("Protein_position", "AA.pos / AA.length", "protein_position")  # CSQ, ANN, generic
@@ -263,7 +277,7 @@ def hpo_labels(term_ids) -> dict[str, str]:
 
 def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,
                  mother, father, affected, profile, retinal, findings, ranked, call, warnings,
-                 counts_extra=None, phenotype_ranks=None) -> dict[str, Any]:
+                 counts_extra=None, phenotype_ranks=None, combining=None) -> dict[str, Any]:
     inputs = [{"role": "vcf", "path": str(vcf_path), "sha256": sha256_file(vcf_path)}]
     for role, p in (("ped", opts.ped), ("phenopacket", opts.phenopacket), ("panel", opts.panel_path),
                     ("rules", opts.rules_path), ("curated", opts.curated_path),
@@ -288,7 +302,7 @@ def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex,
         "panel": {"name": panel.name, "version": panel.version, "sha256": panel.sha256,
                   "genes": len(panel.genes), "subset": list(opts.genes) if opts.genes else None},
         "rules": {"name": getattr(rules, "name", "criteria"), "version": getattr(rules, "version", ""),
-                  "sha256": getattr(rules, "sha256", "")},
+                  "sha256": getattr(rules, "sha256", ""), **combining_dict(combining, findings)},
         "genome_build": intake.build,
         "sample": {"id": proband, "sex": sex, "sex_source": sex_source, "inferred_sex": inferred_sex,
                    "mother": mother, "father": father, "affected": affected,

@@ -283,3 +283,73 @@ def test_svi_amendment_is_narrow():
     # Conflicting benign evidence still makes it Uncertain (Table 5 VUS (ii)).
     assert rule_class([CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting"),
                        CriterionResult("BP4", True, "Supporting")])[0] == "Uncertain significance"
+
+
+# --- rule sets (panels/combining.yaml) --------------------------------------------------------
+from irdtriage.acmg.rulesets import load_combining  # noqa: E402
+
+SETS = load_combining().rule_sets
+
+
+def C(code, strength):
+    return CriterionResult(code, True, strength)
+
+
+@pytest.mark.parametrize("second", ["PM3", "PS2", "PS3"])
+def test_very_strong_second_criterion_counts_as_strong(second):
+    # Richards 2015 Table 5 Pathogenic (i)(a): 1 Very Strong and >= 1 Strong; a criterion applied at
+    # Very Strong is at least Strong (PVS1 + PM3_VeryStrong + PP4_Moderate was wrongly LP before).
+    c = [C("PVS1", "VeryStrong"), C(second, "VeryStrong"), C("PP4", "Moderate")]
+    cls, rule = rule_class(c)
+    assert cls == "Pathogenic" and rule.startswith("Pathogenic (i)(a)")
+    # and with only a Very Strong non-PVS1 criterion plus a Moderate: Table 5 LP (i)
+    assert rule_class([C(second, "VeryStrong"), C("PM2", "Moderate")])[0] == "Likely pathogenic"
+
+
+def test_two_very_strong_alone_is_pathogenic():  # Table 5 P (ii) >= 2 Strong, each Very Strong fills one
+    assert rule_class([C("PVS1", "VeryStrong"), C("PS2", "VeryStrong")])[0] == "Pathogenic"
+
+
+def test_higher_strength_fills_lower_places_only_once():
+    # 1 Strong + 1 Supporting: the Strong criterion cannot fill both the Strong and a Supporting
+    # place of LP (iii) (1 Strong and >= 2 Supporting).
+    assert rule_class([C("PS3", "Strong"), C("PP3", "Supporting")])[0] == "Uncertain significance"
+    # 2 Strong + 1 Supporting is Pathogenic (ii) in any case.
+    assert rule_class([C("PS3", "Strong"), C("PS4", "Strong"), C("PP3", "Supporting")])[0] == "Pathogenic"
+
+
+@pytest.mark.parametrize("code", ["BS1", "BS2", "BP4"])
+def test_stand_alone_benign_codes(code):  # benign criteria a specification grades Stand Alone act as BA1
+    r = combine([C(code, "StandAlone"), C("PM2", "Supporting")])
+    assert (r.classification, r.point_class, r.bayes_class) == ("Benign",) * 3
+    assert r.points == 1 and code in r.note
+
+
+def test_general_set_nets_conflicts_on_points():
+    rs = SETS["clingen-svi-general"]
+    # PVS1 + PS3 + BP4: 8 + 4 - 1 = 11 points, Pathogenic (Tavtigian 2020 Table 3)
+    r = combine(crit(vs=1, s=1, bp=1), rs)
+    assert (r.classification, r.points, r.rule_set) == ("Pathogenic", 11, "clingen-svi-general")
+    assert "netted" in r.rule
+    # PM2_Supporting + BP4 + BP7: 1 - 2 = -1 points, Likely benign
+    c = [C("PM2", "Supporting"), C("BP4", "Supporting"), C("BP7", "Supporting")]
+    assert combine(c, rs).classification == "Likely benign"
+    # 0 points stays Uncertain significance
+    assert combine([C("PM2", "Supporting"), C("BP4", "Supporting")], rs).classification == "Uncertain significance"
+
+
+def test_general_set_single_strong_benign():
+    rs = SETS["clingen-svi-general"]
+    assert rule_class([C("BS1", "Strong")], rs)[0] == "Likely benign"  # -4 points: Likely benign (Tavtigian 2020)
+    assert rule_class([C("BS1", "Strong")], SETS["acmg-2015-svi"])[0] == "Uncertain significance"  # Table 5
+    assert rule_class([C("BS1", "Strong"), C("BS2", "Strong")], rs)[0] == "Benign"  # Table 5 B (ii) still wins
+
+
+@pytest.mark.parametrize("counts,pts_cls,bayes_cls", [
+    (dict(s=2), "Likely pathogenic", "Likely pathogenic"),  # 8 points; posterior 0.975 (Tavtigian 2018)
+    (dict(vs=1, m=1), "Pathogenic", "Pathogenic"),  # 10 points; posterior 0.994
+    (dict(bp=1), "Likely benign", "Likely benign"),  # -1 point; posterior 0.051
+])
+def test_points_and_bayes_rule_sets(counts, pts_cls, bayes_cls):
+    assert combine(crit(**counts), SETS["tavtigian-2020-points"]).classification == pts_cls
+    assert combine(crit(**counts), SETS["tavtigian-2018-bayes"]).classification == bayes_cls

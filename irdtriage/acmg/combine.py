@@ -15,23 +15,27 @@ Three published combining methods run side by side on the same met criteria:
 
 Decisions documented here (they are ours, not the papers'):
 
-* The final ``classification`` is the rule-table class; ``note`` says in one sentence when
-  the points or the posterior disagree.
+* The final ``classification`` is the class of the rule set chosen for the gene
+  (``panels/combining.yaml``, loaded by :mod:`irdtriage.acmg.rulesets`): a table rule set
+  (Table 5 rules as data, plus the rule set's own rules), the point system or the posterior.
+  ``note`` says in one sentence when the points or the posterior disagree with it.
 * Strengths are used as applied: a PVS1 applied at Strong counts as Strong, a PP3 applied
-  at Moderate counts as Moderate, and so on.  A benign criterion applied at Very Strong
-  counts as Strong in the rule table (Table 5 has no benign Very Strong rule) and -8 points.
-* BA1 is stand-alone (Richards 2015; Ghosh et al., Hum Mutat 2018;39:1525-1530): when BA1
-  is met all three methods report Benign; points and posterior are still computed from the
-  other criteria and shown so a reviewer sees what else was met.
+  at Moderate counts as Moderate.  Table 5 counts are minimums, so a criterion applied at a
+  higher strength fills a lower-strength place: a second criterion applied at Very Strong
+  (PM3_VeryStrong, PS2_VeryStrong) counts at least as Strong, and PVS1 plus it is
+  Pathogenic (i)(a).  Very Strong and Stand Alone are accepted for any code the
+  specifications grade that way; Stand Alone only for benign criteria.
+* BA1, or any benign criterion applied at Stand Alone (e.g. ``BS1_Stand Alone``), is
+  stand-alone (Richards 2015; Ghosh et al., Hum Mutat 2018;39:1525-1530): all three methods
+  report Benign; points and posterior are still computed from the other criteria and shown
+  so a reviewer sees what else was met.
 * Conflict: when any pathogenic and any benign criterion are both met, Table 5 "Uncertain
-  significance (ii)" fires (criteria for benign and pathogenic are contradictory); the
-  point and Bayesian results then show how the evidence nets out.
+  significance (ii)" fires (criteria for benign and pathogenic are contradictory), unless the
+  rule set says ``conflict: points`` (the evidence is then netted on the point scale).
 * ClinGen SVI amendment to Table 5 (Recommendation for Absence/Rarity (PM2), version 1.0,
-  approved September 2020): with PM2 applied at Supporting, PVS1 + PM2_Supporting no longer
-  reaches any Table 5 rule, so the SVI added "PVS1 AND PM2_Supporting -> Likely pathogenic"
-  (it is 8 + 1 = 9 points, Likely pathogenic in Tavtigian 2020, posterior 0.988 in Tavtigian
-  2018).  Applied here only for PVS1 at Very Strong together with PM2 at Supporting, when no
-  Table 5 pathogenic rule fires; ``rule`` names the amendment.
+  approved September 2020): "PVS1 AND PM2_Supporting -> Likely pathogenic" (8 + 1 = 9 points,
+  Likely pathogenic in Tavtigian 2020, posterior 0.988 in Tavtigian 2018), written in the
+  rule sets as a rule naming PVS1 at Very Strong and PM2 at Supporting.
 * Exactly 6 points (e.g. Likely pathogenic rule (ii), 1 Strong + 1 Moderate) gives a
   posterior of 0.89991 at prior 0.10; Tavtigian 2020 (Table 3 footnote) says the prior
   should be read as "infinitesimally greater than 0.10" so that these rules land in
@@ -41,7 +45,7 @@ Decisions documented here (they are ours, not the papers'):
 from __future__ import annotations
 
 from collections import Counter
-from typing import Iterable
+from typing import Iterable, Optional
 
 from ..models import BENIGN_CODES, PATHOGENIC_CODES, Classification, CriterionResult
 
@@ -66,8 +70,8 @@ def _met(criteria: Iterable[CriterionResult]) -> list[CriterionResult]:
             raise ValueError(f"unknown ACMG/AMP criterion code {c.code!r}")
         if c.strength not in POINTS and c.strength != "StandAlone":
             raise ValueError(f"criterion {c.code} is met but has no valid strength ({c.strength!r})")
-        if c.strength == "StandAlone" and c.code != "BA1":
-            raise ValueError(f"only BA1 can be applied stand-alone, not {c.code}")
+        if c.strength == "StandAlone" and c.code not in BENIGN_CODES:
+            raise ValueError(f"only benign criteria can be applied stand-alone, not {c.code}")
         out.append(c)
     return out
 
@@ -77,98 +81,106 @@ def pathogenic_counts(met: list[CriterionResult]) -> Counter:
 
 
 def benign_counts(met: list[CriterionResult]) -> Counter:
-    cnt: Counter = Counter()
-    for c in met:
-        if c.code in BENIGN_CODES:
-            s = "Strong" if c.strength == "VeryStrong" else c.strength
-            cnt[s] += 1
-    return cnt
+    return Counter(c.strength for c in met if c.code in BENIGN_CODES and c.strength != "StandAlone")
 
 
-def pathogenic_rule(n: Counter) -> tuple[str, str]:
-    """Richards 2015 Table 5, pathogenic side only. Returns (class, rule) or (UNCERTAIN, "")."""
-    vs, s, m, p = n["VeryStrong"], n["Strong"], n["Moderate"], n["Supporting"]
-    if vs >= 1:
-        if s >= 1:
-            return PATHOGENIC, "Pathogenic (i)(a): 1 Very Strong and >=1 Strong"
-        if m >= 2:
-            return PATHOGENIC, "Pathogenic (i)(b): 1 Very Strong and >=2 Moderate"
-        if m == 1 and p >= 1:
-            return PATHOGENIC, "Pathogenic (i)(c): 1 Very Strong, 1 Moderate and 1 Supporting"
-        if p >= 2:
-            return PATHOGENIC, "Pathogenic (i)(d): 1 Very Strong and >=2 Supporting"
-    if s >= 2:
-        return PATHOGENIC, "Pathogenic (ii): >=2 Strong"
-    if s >= 1:
-        if m >= 3:
-            return PATHOGENIC, "Pathogenic (iii)(a): 1 Strong and >=3 Moderate"
-        if m == 2 and p >= 2:
-            return PATHOGENIC, "Pathogenic (iii)(b): 1 Strong, 2 Moderate and >=2 Supporting"
-        if m == 1 and p >= 4:
-            return PATHOGENIC, "Pathogenic (iii)(c): 1 Strong, 1 Moderate and >=4 Supporting"
-    if vs >= 1 and m == 1:
-        return LIKELY_PATHOGENIC, "Likely pathogenic (i): 1 Very Strong and 1 Moderate"
-    if s >= 1 and m in (1, 2):
-        return LIKELY_PATHOGENIC, "Likely pathogenic (ii): 1 Strong and 1-2 Moderate"
-    if s >= 1 and p >= 2:
-        return LIKELY_PATHOGENIC, "Likely pathogenic (iii): 1 Strong and >=2 Supporting"
-    if m >= 3:
-        return LIKELY_PATHOGENIC, "Likely pathogenic (iv): >=3 Moderate"
-    if m == 2 and p >= 2:
-        return LIKELY_PATHOGENIC, "Likely pathogenic (v): 2 Moderate and >=2 Supporting"
-    if m == 1 and p >= 4:
-        return LIKELY_PATHOGENIC, "Likely pathogenic (vi): 1 Moderate and >=4 Supporting"
-    return UNCERTAIN, ""
+_ORDER = ("VeryStrong", "Strong", "Moderate", "Supporting")
+_RANK = {s: i for i, s in enumerate(_ORDER)}
 
 
-def benign_rule(n: Counter, ba1: bool) -> tuple[str, str]:
-    """Richards 2015 Table 5, benign side only."""
-    if ba1:
-        return BENIGN, "Benign (i): 1 Stand-alone (BA1)"
-    if n["Strong"] >= 2:
-        return BENIGN, "Benign (ii): >=2 Strong"
-    if n["Strong"] >= 1 and n["Supporting"] >= 1:
-        return LIKELY_BENIGN, "Likely benign (i): 1 Strong and 1 Supporting"
-    if n["Supporting"] >= 2:
-        return LIKELY_BENIGN, "Likely benign (ii): >=2 Supporting"
-    return UNCERTAIN, ""
+def satisfies(counts: Counter, need) -> bool:
+    """True when distinct criteria can fill every place in ``need`` ((strength, count) pairs), a
+    criterion at a higher strength filling a lower-strength place (Richards 2015 Table 5 counts are
+    minimums, and a criterion applied at Very Strong counts at least as Strong).  For nested
+    "at least this strong" places this is the Hall condition: at every strength, the criteria at
+    that strength or above are at least as many as the places at that strength or above."""
+    want = dict(need)
+    have = placed = 0
+    for s in _ORDER:
+        have += counts.get(s, 0)
+        placed += want.get(s, 0)
+        if have < placed:
+            return False
+    return True
 
 
-SVI_PVS1_PM2_RULE = ("Likely pathogenic (SVI 2020 amendment to Table 5): PVS1 and PM2_Supporting "
-                     "(ClinGen SVI PM2 recommendation v1.0)")
+def _codes_met(met: list[CriterionResult], codes) -> bool:
+    for code, strength in codes:
+        if not any(c.code == code and c.strength in _RANK and _RANK[c.strength] <= _RANK[strength] for c in met):
+            return False
+    return True
 
 
-def svi_pvs1_pm2(met: list[CriterionResult]) -> bool:
-    """PVS1 at Very Strong and PM2 at Supporting are both met (the SVI 2020 amendment's case)."""
-    return (any(c.code == "PVS1" and c.strength == "VeryStrong" for c in met)
-            and any(c.code == "PM2" and c.strength == "Supporting" for c in met))
+def _stand_alone(met: list[CriterionResult]) -> Optional[CriterionResult]:
+    return next((c for c in met if c.code == "BA1"), None) or next(
+        (c for c in met if c.code in BENIGN_CODES and c.strength == "StandAlone"), None)
 
 
-def rule_class(criteria: Iterable[CriterionResult]) -> tuple[str, str]:
-    """Richards 2015 Table 5 result (with the SVI 2020 PVS1 + PM2_Supporting amendment) and the rule."""
+def _rule_set(rule_set):
+    if rule_set is not None:
+        return rule_set
+    from .rulesets import load_combining
+
+    return load_combining().for_gene(None)
+
+
+_CLASS_RANK = {PATHOGENIC: 0, LIKELY_PATHOGENIC: 1, BENIGN: 0, LIKELY_BENIGN: 1}
+
+
+def table_rule(met: list[CriterionResult], rules, side: str) -> tuple[str, str]:
+    """The strongest class any rule of ``side`` gives, and the first such rule's label."""
+    counts = pathogenic_counts(met) if side == "pathogenic" else benign_counts(met)
+    best: Optional[tuple[str, str]] = None
+    for r in rules:
+        if r.side != side:
+            continue
+        if r.need and not satisfies(counts, r.need):
+            continue
+        if r.codes and not _codes_met(met, r.codes):
+            continue
+        if best is None or _CLASS_RANK[r.cls] < _CLASS_RANK[best[0]]:
+            best = (r.cls, r.label)
+    return best or (UNCERTAIN, "")
+
+
+def rule_class(criteria: Iterable[CriterionResult], rule_set=None) -> tuple[str, str]:
+    """The rule set's class for the met criteria and the rule that fired (default rule set:
+    Richards 2015 Table 5 with the SVI 2020 PVS1 + PM2_Supporting rule)."""
+    rs = _rule_set(rule_set)
     met = _met(criteria)
-    ba1 = any(c.code == "BA1" for c in met)
-    if ba1:
-        return benign_rule(Counter(), True)
-    pc, bc = pathogenic_counts(met), benign_counts(met)
-    if sum(pc.values()) and sum(bc.values()):
+    alone = _stand_alone(met)
+    if alone is not None:
+        return BENIGN, f"Benign (i): 1 Stand-alone ({alone.code})"
+    pts = points(met)
+    if rs.method == "points":
+        cls = point_class(pts)
+        return cls, f"{rs.title}: {pts} points is {cls}"
+    if rs.method == "bayes":
+        post = posterior(odds_of_pathogenicity(met))
+        cls = bayes_class(post)
+        return cls, f"{rs.title}: posterior {post:.3f} is {cls}"
+    has_p = any(c.code in PATHOGENIC_CODES for c in met)
+    has_b = any(c.code in BENIGN_CODES for c in met)
+    if has_p and has_b:
+        if rs.conflict == "points":
+            cls = point_class(pts)
+            return cls, (f"Contradictory pathogenic and benign criteria netted on the point scale: {pts} points "
+                         f"is {cls} (Tavtigian 2020)")
         return UNCERTAIN, "Uncertain significance (ii): pathogenic and benign criteria are contradictory"
-    if sum(pc.values()):
-        cls, rule = pathogenic_rule(pc)
-        if cls == UNCERTAIN and svi_pvs1_pm2(met):
-            cls, rule = LIKELY_PATHOGENIC, SVI_PVS1_PM2_RULE
-    else:
-        cls, rule = benign_rule(bc, False)
+    cls, rule = table_rule(met, rs.rules, "pathogenic" if has_p else "benign") if (has_p or has_b) else (UNCERTAIN, "")
     if cls == UNCERTAIN:
         return UNCERTAIN, "Uncertain significance (i): other criteria shown above are not met"
     return cls, rule
 
 
+SVI_PVS1_PM2_RULE = "Likely pathogenic (SVI 2020 amendment to Table 5): PVS1 and PM2_Supporting"
+
+
 def points(criteria: Iterable[CriterionResult]) -> int:
-    """Tavtigian 2020 point sum (BA1 excluded: it is stand-alone)."""
+    """Tavtigian 2020 point sum (BA1 and other stand-alone benign criteria excluded)."""
     total = 0
     for c in _met(criteria):
-        if c.code == "BA1":
+        if c.strength == "StandAlone":
             continue
         value = POINTS[c.strength]
         total += value if c.code in PATHOGENIC_CODES else -value
@@ -192,7 +204,7 @@ def odds_of_pathogenicity(criteria: Iterable[CriterionResult]) -> float:
     """Tavtigian 2018 combined odds: 350 ** (Nsup/8 + Nmod/4 + Nstr/2 + Nvstr), benign subtracts."""
     exponent = 0.0
     for c in _met(criteria):
-        if c.code == "BA1":
+        if c.strength == "StandAlone":
             continue
         w = EXPONENT_WEIGHT[c.strength]
         exponent += w if c.code in PATHOGENIC_CODES else -w
@@ -217,22 +229,25 @@ def bayes_class(post: float) -> str:
     return UNCERTAIN
 
 
-def combine(criteria: Iterable[CriterionResult]) -> Classification:
-    crit = list(criteria)
-    met = _met(crit)
-    ba1 = any(c.code == "BA1" for c in met)
-    rcls, rule = rule_class(met)
+def combine(criteria: Iterable[CriterionResult], rule_set=None) -> Classification:
+    """Classify the met criteria with ``rule_set`` (a :class:`irdtriage.acmg.rulesets.RuleSet`;
+    default: the bundled default rule set) and, side by side, the point system and the posterior."""
+    rs = _rule_set(rule_set)
+    met = _met(list(criteria))
+    alone = _stand_alone(met)
+    rcls, rule = rule_class(met, rs)
     pts = points(met)
     post = posterior(odds_of_pathogenicity(met))
-    pcls = BENIGN if ba1 else point_class(pts)
-    bcls = BENIGN if ba1 else bayes_class(post)
+    pcls = BENIGN if alone else point_class(pts)
+    bcls = BENIGN if alone else bayes_class(post)
     note = ""
-    if ba1 and any(c.code in PATHOGENIC_CODES for c in met):
-        note = ("BA1 is stand-alone benign, but pathogenic criteria are also met "
-                f"({pts} points without BA1): check for a curated BA1 exception.")
+    if alone and any(c.code in PATHOGENIC_CODES for c in met):
+        note = (f"{alone.code} is stand-alone benign, but pathogenic criteria are also met "
+                f"({pts} points without {alone.code}): check for a curated {alone.code} exception.")
     elif pcls != rcls or bcls != rcls:
-        note = (f"The rule table gives {rcls}, the point system {pcls} ({pts} points) and the "
-                f"Bayesian posterior {bcls} ({post:.4f}); the rule-table class is reported.")
+        what = "rule table" if rs.method == "table" else rs.title
+        note = (f"The {what} gives {rcls} (rule set {rs.name}), the point system {pcls} ({pts} points) and "
+                f"the Bayesian posterior {bcls} ({post:.4f}); the {what} class is reported.")
     return Classification(
         classification=rcls,
         rule_class=rcls,
@@ -242,4 +257,5 @@ def combine(criteria: Iterable[CriterionResult]) -> Classification:
         bayes_class=bcls,
         note=note,
         rule=rule,
+        rule_set=rs.name,
     )

@@ -107,20 +107,8 @@ def _criteria(row: dict) -> list[CriterionResult]:
     return out
 
 
-# Rows the product gets wrong (strict: they flip to a failure once fixed, so this list is kept true).
-PRODUCT_BUGS = {
-    # Table 5 Pathogenic (i)(a): PVS1 and >= 1 Strong. PM3 applied at Very Strong is at least
-    # Strong, so PVS1 + PM3_Very Strong (+ PP4_Moderate) is Pathogenic; combine gives Likely
-    # pathogenic because a second Very Strong criterion is not counted by any Table 5 rule.
-    "PAH PP4_Moderate, PVS1, PM3_Very Strong":
-        "combine ignores a second criterion applied at Very Strong (PVS1 + PM3_Very Strong -> Likely pathogenic)",
-}
-
-
 def _param(row):
-    bug = PRODUCT_BUGS.get(_depart_key(row))
-    marks = [pytest.mark.xfail(strict=True, reason=bug)] if bug else []
-    return pytest.param(row, id=row["clingen_uuid"][:8], marks=marks)
+    return pytest.param(row, id=row["clingen_uuid"][:8])
 
 
 @need_erepo
@@ -144,7 +132,19 @@ def test_expert_panel_rows_cover_every_class():
     assert set(classes) == set(PANEL_CLASS), classes
     assert sum(1 for r in EREPO_ROWS if r["gene"] == "RS1") == 8  # refdata export: 8 RS1 rows
     # every departure listed above is a row of the export (none is stale)
-    assert (set(PANEL_DEPARTS) | set(PRODUCT_BUGS)) <= {_depart_key(r) for r in EREPO_ROWS}
+    assert set(PANEL_DEPARTS) <= {_depart_key(r) for r in EREPO_ROWS}
+
+
+@need_erepo
+def test_pvs1_with_a_second_very_strong_criterion_is_pathogenic():
+    # Richards 2015 Table 5 Pathogenic (i)(a): 1 Very Strong and >= 1 Strong. PM3 applied at Very
+    # Strong is at least Strong, so the PAH panel's PVS1 + PM3_Very Strong + PP4_Moderate row is
+    # Pathogenic, as the panel asserted.
+    rows = [r for r in EREPO_ROWS if _depart_key(r) == "PAH PP4_Moderate, PVS1, PM3_Very Strong"]
+    assert rows and all(r["assertion"] == "Pathogenic" for r in rows)
+    for r in rows:
+        cls = combine(_criteria(r))
+        assert (cls.classification, cls.rule[:18]) == ("Pathogenic", "Pathogenic (i)(a):"), cls
 
 
 # --------------------------------------------------------------------------------------------
