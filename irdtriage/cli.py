@@ -205,6 +205,11 @@ def _tier_genes(args) -> tuple[Optional[list[str]], list[str]]:
 
     genes = parse_gene_option(args.genes) if args.genes else None
     panel = load_panel(args.panel, genes=genes)
+    if genes is not None and args.tier is None:
+        # genes named with --genes are triaged whatever their evidence level; say so for disputed ones
+        disputed = [s for s, g in panel.genes.items() if g.evidence_level == "disputed"]
+        return genes, ([f"--genes names gene(s) whose link to disease is disputed: {', '.join(disputed)}"]
+                       if disputed else [])
     keep = genes_at_tier(panel, args.tier)
     dropped = [s for s in panel.genes if s not in keep]
     if not dropped:

@@ -380,6 +380,8 @@ def main(argv: Optional[list[str]] = None) -> int:
 # panels/curation/seed.yaml (curated from the curators' knowledge, from memory; checked
 # against HPO annotations and MANE by tests/external/). Identifiers and coordinates are
 # copied from the sources below. Coordinates are 1-based inclusive; chromosomes without "chr".
+# Evidence levels and sources follow panels/curation/POLICY.md. Genes without a MANE Select row
+# (chrM) carry hand-given identifiers and rCRS (NC_012920.1) coordinates cited in their notes.
 name: {args.name}
 version: {q(args.version)}
 sources:
