@@ -117,6 +117,9 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--sex", help="male, female or unknown (overrides the phenopacket/PED)")
     t.add_argument("--build", choices=("GRCh37", "GRCh38"), help="genome build (default: detected from the header)")
     add_panel_opts(t)
+    t.add_argument("--tier", choices=("established", "moderate", "limited"), default=None,
+                   help="keep only panel genes whose gene-disease evidence is at or above this level "
+                        "(default: every gene except disputed ones)")
     t.add_argument("--rules", metavar="FILE", help="criteria rule set YAML (default: bundled panels/criteria.yaml)")
     t.add_argument("--curated", metavar="FILE", help="curated evidence (PS3, BS3, PS4, PP5, BP6 ...) YAML/TSV")
     t.add_argument("--population-vcf", metavar="FILE", help="population-frequency VCF (bgzipped + tabix)")
@@ -141,8 +144,10 @@ def build_parser() -> argparse.ArgumentParser:
     ps = pn_sub.add_parser("show", help="everything the panel says about one gene")
     ps.add_argument("gene")
     add_panel_opts(ps)
-    pc = pn_sub.add_parser("check", help="validate the panel and cascade data")
+    pc = pn_sub.add_parser("check", help="validate the panel and cascade data, and its coverage of the "
+                                         "HPO retinal-dystrophy gene set")
     add_panel_opts(pc)
+    pc.add_argument("--no-hpo", action="store_true", help="skip the HPO coverage count")
 
     e = sub.add_parser("explain", help="the full criterion table for one finding")
     e.add_argument("variant", help="finding id (F1), chrom-pos-ref-alt, or HGVS c./p. text")
@@ -278,14 +283,36 @@ def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optiona
     return result
 
 
-def cmd_triage(args, argv) -> int:
+def _tier_genes(args) -> tuple[Optional[list[str]], list[str]]:
+    """Genes to triage after --genes and --tier, and a warning naming what the tier left out."""
+    from .panel import genes_at_tier, load_panel
+
     genes = parse_gene_option(args.genes) if args.genes else None
+    panel = load_panel(args.panel, genes=genes)
+    if genes is not None and args.tier is None:
+        # genes named with --genes are triaged whatever their evidence level; say so for disputed ones
+        disputed = [s for s, g in panel.genes.items() if g.evidence_level == "disputed"]
+        return genes, ([f"--genes names gene(s) whose link to disease is disputed: {', '.join(disputed)}"]
+                       if disputed else [])
+    keep = genes_at_tier(panel, args.tier)
+    dropped = [s for s in panel.genes if s not in keep]
+    if not dropped:
+        return genes, []
+    if not keep:
+        raise InputError(f"no panel gene is at evidence tier {args.tier or 'limited'} or above", panel.source)
+    tier = args.tier or "limited (default)"
+    return keep, [f"evidence tier {tier}: {len(keep)} of {len(panel.genes)} panel genes triaged; "
+                  f"left out: {', '.join(dropped[:12])}{' ...' if len(dropped) > 12 else ''}"]
+
+
+def cmd_triage(args, argv) -> int:
+    genes, tier_warnings = _tier_genes(args)
     kwargs = dict(
         sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
         curated_path=args.curated, popfreq_vcf=args.population_vcf, clinical_vcf=args.clinical_vcf,
         score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
-        command="irdtriage " + " ".join(shlex.quote(a) for a in argv),
+        command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
     )
     inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
               ("rules", args.rules), ("curated evidence", args.curated),
@@ -325,11 +352,11 @@ def cmd_panel(args, parser) -> int:
     console = _console()
     if args.panel_command == "list":
         table = Table(title=f"{panel.name} {panel.version}: {len(panel.genes)} genes", show_lines=False)
-        for col in ("gene", "inheritance", "mechanism", "cascade step", "conditions"):
+        for col in ("gene", "inheritance", "mechanism", "evidence", "cascade step", "conditions"):
             table.add_column(col, overflow="fold")
         for g in panel.genes.values():
             step = panel.cascade.get(g.cascade_step)
-            table.add_row(g.symbol, ",".join(g.inheritance), ",".join(g.mechanisms),
+            table.add_row(g.symbol, ",".join(g.inheritance), ",".join(g.mechanisms), g.evidence_level or "not graded",
                           step.title if step else g.cascade_step, "; ".join(g.conditions[:2]))
         console.print(table)
         return 0
@@ -342,11 +369,14 @@ def cmd_panel(args, parser) -> int:
         g = panel.genes[sym]
         rows = [
             ("symbol", g.symbol), ("HGNC", g.hgnc_id), ("name", g.name),
-            ("MANE Select", f"{g.refseq_transcript} / {g.ensembl_transcript} ({g.refseq_protein})"),
+            ("reference (rCRS)" if g.grch38.chrom == "MT" else "MANE Select",
+             f"{g.refseq_transcript} / {g.ensembl_transcript}" + (f" ({g.refseq_protein})" if g.refseq_protein else "")),
             ("GRCh38", f"chr{g.grch38.chrom}:{g.grch38.start:,}-{g.grch38.end:,} ({g.strand})"),
             ("GRCh37", f"chr{g.grch37.chrom}:{g.grch37.start:,}-{g.grch37.end:,}" if g.grch37 else "not given"),
             ("inheritance", ", ".join(g.inheritance)), ("mechanism", ", ".join(g.mechanisms)),
             ("conditions", "; ".join(g.conditions)), ("syndromic", "yes" if g.syndromic else "no"),
+            ("evidence", f"{g.evidence_level or 'not graded'}" + (f" (called {g.evidence_date})" if g.evidence_date else "")),
+            ("evidence source", "; ".join(g.evidence_source) or "none given"),
             ("cascade step", g.cascade_step), ("biology", explain(panel, sym)),
         ] + [("note", n) for n in g.notes]
         t = Table(show_header=False, title=f"{g.symbol} on {panel.name} {panel.version}")
@@ -364,8 +394,43 @@ def cmd_panel(args, parser) -> int:
             return 2
         console.print(f"{panel.name} {panel.version}: {len(panel.genes)} genes, {len(panel.cascade)} cascade "
                       f"steps, sha256 {panel.sha256[:12]}: OK")
-        return 0
+        levels = {}
+        for g in panel.genes.values():
+            levels[g.evidence_level or "not graded"] = levels.get(g.evidence_level or "not graded", 0) + 1
+        console.print("evidence levels: " + ", ".join(f"{k} {v}" for k, v in levels.items()))
+        if args.no_hpo or genes:
+            return 0
+        return _panel_hpo_coverage(panel, console)
     return 2
+
+
+def _panel_hpo_coverage(panel, console) -> int:
+    """Print the panel's coverage of the HPO retinal-dystrophy gene set; 2 when any gene is unaccounted."""
+    from .panel import hpo_coverage, hpo_retinal_dystrophy_genes
+
+    try:
+        hpo_genes, release = hpo_retinal_dystrophy_genes()
+    except ImportError:
+        print("irdtriage: HPO coverage not checked: hpo3 is not installed", file=sys.stderr)
+        return 0
+    cov = hpo_coverage(panel, hpo_genes)
+    console.print(f"HPO {release}: {len(hpo_genes)} genes annotated to HP:0000556 Retinal dystrophy or a "
+                  f"descendant: {len(cov['in_panel'])} in the panel, {len(cov['excluded'])} excluded with a reason, "
+                  f"{len(cov['unaccounted'])} unaccounted")
+    if cov["excluded"]:
+        from rich.table import Table
+
+        t = Table(title="HPO retinal-dystrophy genes excluded from the panel")
+        t.add_column("gene")
+        t.add_column("reason", overflow="fold")
+        for sym in cov["excluded"]:
+            t.add_row(sym, panel.excluded[sym])
+        console.print(t)
+    if cov["unaccounted"]:
+        print(f"irdtriage: panel problem: {len(cov['unaccounted'])} HPO retinal-dystrophy gene(s) neither on the "
+              f"panel nor excluded with a reason: {', '.join(cov['unaccounted'])}", file=sys.stderr)
+        return 2
+    return 0
 
 
 def cmd_explain(args) -> int:

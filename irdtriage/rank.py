@@ -78,6 +78,7 @@ from typing import Iterable, Optional, Sequence
 from . import CAUTION
 from .genotype import FIT_PREFERENCE
 from .models import Finding, Gene, GeneHypothesis, Panel
+from .panel import NOT_SOLVING_LEVELS
 
 FIT_WEIGHT = {
     "biallelic in trans": 1.0,
@@ -223,6 +224,7 @@ def rank_hypotheses(hypotheses: Iterable[GeneHypothesis], panel: Optional[Panel]
     hs = list(hypotheses)
     for h in hs:
         h.score = score_hypothesis(h, genes.get(h.symbol))
+        h.evidence_level = getattr(genes.get(h.symbol), "evidence_level", "") or ""
     hs.sort(key=lambda h: (-h.score, FIT_PREFERENCE.get(h.genotype_fit, 99), -_class_weight(h), h.symbol))
     for i, h in enumerate(hs, 1):
         h.rank = i
@@ -285,8 +287,11 @@ def _phase_note(h: GeneHypothesis) -> str:
 
 
 def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[bool]) -> CaseCall:
-    solving = [h for h in ranked if _solving(h, phenotype_fits_retina)]
-    candidates = [h for h in ranked if _candidate(h, phenotype_fits_retina)]
+    # a gene whose gene-disease evidence is limited or disputed never solves a case on its own
+    # (panels/curation/POLICY.md): its complete fit stays a candidate, reviewed before reporting
+    weak = [h for h in ranked if _solving(h, phenotype_fits_retina) and h.evidence_level in NOT_SOLVING_LEVELS]
+    solving = [h for h in ranked if _solving(h, phenotype_fits_retina) and h not in weak]
+    candidates = [h for h in ranked if _candidate(h, phenotype_fits_retina) or h in weak]
     unassessed = [h for h in ranked if h.genotype_fit != "no qualifying finding" and blocked(h)]
     steps: list[str] = []
     if unassessed:
@@ -308,8 +313,13 @@ def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[
     elif candidates:
         top = candidates[0]
         status = "IN_PROGRESS"
-        summary = f"Candidate explanation, not yet complete: {_describe(top)} - {_missing(top, phenotype_fits_retina)}."
+        missing = (f"the evidence linking {top.symbol} to disease is {top.evidence_level}, so a limited-evidence "
+                   f"gene cannot solve the case on its own" if top in weak else _missing(top, phenotype_fits_retina))
+        summary = f"Candidate explanation, not yet complete: {_describe(top)} - {missing}."
         focus = candidates[:3]
+        if top in weak:
+            steps.append(f"Review the published gene-disease evidence for {top.symbol} (evidence level "
+                         f"{top.evidence_level}) before reporting it as the cause.")
     elif unassessed:
         status = "IN_PROGRESS"
         summary = (f"Not assessable yet: {_describe(unassessed[0])} - consequence and population frequency unknown, "
@@ -407,8 +417,9 @@ def assign_interpretation_status(ranked: Sequence[GeneHypothesis], call: Optiona
     solved_done = False
     for h in ranked:
         fit_ids = {f.id for f in fit_findings(h)}
-        solving = _solving(h, phenotype_fits_retina)
-        candidate = _candidate(h, phenotype_fits_retina)
+        complete = _solving(h, phenotype_fits_retina)
+        solving = complete and h.evidence_level not in NOT_SOLVING_LEVELS  # limited genes stay CANDIDATE
+        candidate = _candidate(h, phenotype_fits_retina) or complete
         p = _pheno_state(h, phenotype_fits_retina)
         for f in h.findings:
             c = _cls(f)

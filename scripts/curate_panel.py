@@ -29,11 +29,24 @@ canonical transcript (identical exon structure) appears in both the GRCh37 and G
 tables, the MANE Select span is carried to GRCh37 by that transcript's offset between
 builds and the GRCh37 span is widened to cover both; otherwise the canonical span is kept
 and a note says so. A gene missing from the GRCh37 table gets ``grch37: null`` and a note.
+
+Genes without a MANE Select row (the chrM genes) take their identifiers and coordinates from
+the seed's ``coordinates:`` block, which must cite its source; only the mitochondrial reference
+NC_012920.1 (rCRS) is accepted there, and the same span is written for GRCh38 (chrM) and GRCh37
+(MT), which are both the rCRS. A seed gene with both a MANE row and ``coordinates:`` stops the
+script, so hand-given values never override MANE.
+
+Each seed gene must carry ``evidence_level`` (established, moderate, limited, disputed), a
+non-empty ``evidence_source`` list and ``evidence_date`` (YYYY-MM-DD); see
+panels/curation/POLICY.md. The exclusions list (``--excluded``; by default
+``excluded.yaml`` next to the seed) is copied into genes.yaml under ``excluded:`` so that an
+installed ``irdtriage panel check`` can account for every HPO retinal-dystrophy gene.
 """
 from __future__ import annotations
 
 import argparse
 import json
+import re
 import sys
 from collections import Counter
 from pathlib import Path
@@ -47,15 +60,23 @@ import refdata_tables  # noqa: E402
 from refdata_tables import read_table, refseq_chrom, sha256  # noqa: E402,F401
 
 PANEL_NAME = "irdtriage-ird"
-PANEL_VERSION = "2026.12.0"
+PANEL_VERSION = "2026.12.1"
 SEED_KEYS = {
     "symbol", "previous_symbols", "inheritance", "mechanisms", "conditions",
     "cascade_step", "syndromic", "notes", "hpo_justification",
+    "evidence_level", "evidence_source", "evidence_date", "coordinates",
 }
+EVIDENCE_LEVELS = ("established", "moderate", "limited", "disputed")
+COORDINATE_KEYS = {"hgnc_id", "name", "refseq_transcript", "refseq_protein", "ensembl_transcript",
+                   "strand", "start", "end", "source"}
+RCRS = "NC_012920.1"  # revised Cambridge Reference Sequence: GRCh38 chrM and GRCh37 MT
+RCRS_LENGTH = 16569
+_RE_DATE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
 GENE_FIELD_ORDER = (
     "symbol", "hgnc_id", "name", "refseq_transcript", "ensembl_transcript",
     "refseq_protein", "strand", "grch38", "grch37", "inheritance", "mechanisms",
-    "conditions", "cascade_step", "syndromic", "notes", "hpo_justification",
+    "conditions", "cascade_step", "syndromic", "evidence_level", "evidence_source", "evidence_date",
+    "notes", "hpo_justification",
 )
 
 
@@ -195,7 +216,7 @@ def gene_yaml(g: dict[str, Any]) -> str:
             lines.append(f"    {key}: {span_yaml(v)}")
         elif key in ("inheritance", "mechanisms"):
             lines.append(f"    {key}: {flow_list(v)}")
-        elif key in ("conditions", "notes"):
+        elif key in ("conditions", "notes", "evidence_source"):
             if not v:
                 lines.append(f"    {key}: []")
             else:
@@ -203,11 +224,62 @@ def gene_yaml(g: dict[str, Any]) -> str:
                 lines.extend(f"      - {q(x)}" for x in v)
         elif key == "syndromic":
             lines.append(f"    {key}: {'true' if v else 'false'}")
-        elif key == "cascade_step":
+        elif key in ("cascade_step", "evidence_level"):
             lines.append(f"    {key}: {v}")
         else:
             lines.append(f"    {key}: {q(v)}")
     return "\n".join(lines)
+
+
+def evidence_problems(sym: str, entry: dict[str, Any]) -> list[str]:
+    """Problems with a seed entry's evidence_level / evidence_source / evidence_date."""
+    out = []
+    if entry.get("evidence_level") not in EVIDENCE_LEVELS:
+        out.append(f"{sym}: evidence_level {entry.get('evidence_level')!r} is not one of {', '.join(EVIDENCE_LEVELS)}")
+    src = entry.get("evidence_source")
+    if not isinstance(src, list) or not src or not all(isinstance(s, str) and s.strip() for s in src):
+        out.append(f"{sym}: evidence_source must be a non-empty list of citations")
+    if not _RE_DATE.match(str(entry.get("evidence_date", ""))):
+        out.append(f"{sym}: evidence_date must be a date YYYY-MM-DD")
+    return out
+
+
+def hand_coordinates(sym: str, c: Any) -> tuple[Optional[tuple], str]:
+    """((MANE-like row, GRCh37 span, notes), "") from a seed ``coordinates:`` block, or (None, why).
+
+    Only the rCRS (NC_012920.1) is accepted: GRCh38 chrM and GRCh37 MT are the same sequence,
+    so the span is written for both builds. The block's ``source`` becomes a note.
+    """
+    if not isinstance(c, dict):
+        return None, "must be a mapping"
+    missing, unknown = COORDINATE_KEYS - set(c), set(c) - COORDINATE_KEYS
+    if missing or unknown:
+        return None, f"missing {sorted(missing)}" if missing else f"unknown keys {sorted(unknown)}"
+    if c["refseq_transcript"] != RCRS:
+        return None, f"hand-given coordinates are accepted only on the rCRS {RCRS}"
+    start, end = c["start"], c["end"]
+    if not (isinstance(start, int) and isinstance(end, int) and 1 <= start <= end <= RCRS_LENGTH):
+        return None, f"start/end must be integers within 1..{RCRS_LENGTH}"
+    if c["strand"] not in ("+", "-") or not str(c["source"]).strip():
+        return None, "strand must be + or - and source must cite where the values come from"
+    row = {"hgnc_id": c["hgnc_id"], "name": c["name"], "refseq_transcript": RCRS,
+           "refseq_protein": c["refseq_protein"] or "", "ensembl_transcript": c["ensembl_transcript"],
+           "chrom": "MT", "start": start, "end": end, "strand": c["strand"]}
+    note = (f"No MANE Select transcript (mitochondrial gene): identifiers and span {start}-{end} on the "
+            f"rCRS {RCRS}, used for GRCh38 chrM and GRCh37 MT (both the rCRS; UCSC hg19 chrM is a "
+            f"different sequence). Source: {' '.join(str(c['source']).split())}")
+    return (row, {"chrom": "MT", "start": start, "end": end}, [note]), ""
+
+
+def read_excluded(path: Path) -> list[dict[str, str]]:
+    """The exclusions list: [{symbol, reason}] sorted as in the file; stops on a malformed entry."""
+    doc = yaml.safe_load(path.read_text()) or {}
+    out = []
+    for n, e in enumerate(doc.get("excluded") or [], 1):
+        if not isinstance(e, dict) or set(e) != {"symbol", "reason"} or not str(e["reason"]).strip():
+            sys.exit(f"{path}: entry {n} must have exactly symbol and a non-empty reason")
+        out.append({"symbol": str(e["symbol"]), "reason": " ".join(str(e["reason"]).split())})
+    return out
 
 
 def main(argv: Optional[list[str]] = None) -> int:
@@ -221,6 +293,8 @@ def main(argv: Optional[list[str]] = None) -> int:
                     help="do not look for the GRCh38 table next to the --grch37 file")
     ap.add_argument("--seed", required=True, type=Path, help="panels/curation/seed.yaml")
     ap.add_argument("--out", required=True, type=Path, help="panels/genes.yaml to write")
+    ap.add_argument("--excluded", type=Path, default=None,
+                    help="exclusions list copied into genes.yaml (default: excluded.yaml next to --seed)")
     ap.add_argument("--name", default=PANEL_NAME)
     ap.add_argument("--version", default=PANEL_VERSION)
     args = ap.parse_args(argv)
@@ -230,6 +304,8 @@ def main(argv: Optional[list[str]] = None) -> int:
         if sibling != args.grch37 and sibling.is_file():
             args.grch38_table = sibling
             print(f"curate_panel: using the GRCh38 table next to --grch37: {sibling}", file=sys.stderr)
+    if args.excluded is None and (args.seed.parent / "excluded.yaml").is_file():
+        args.excluded = args.seed.parent / "excluded.yaml"
     seed_doc = yaml.safe_load(args.seed.read_text())
     seed = seed_doc["genes"]
     mane = read_mane(args.mane)
@@ -250,12 +326,23 @@ def main(argv: Optional[list[str]] = None) -> int:
         if sym in seen:
             problems.append(f"{sym}: duplicate in seed")
         seen.add(sym)
+        problems.extend(evidence_problems(sym, entry))
         m = mane.get(sym)
-        if m is None:
+        if m is not None and entry.get("coordinates"):
+            problems.append(f"{sym}: has a MANE Select row and hand-given coordinates; remove the coordinates")
+            continue
+        if m is None and entry.get("coordinates"):
+            hand, why = hand_coordinates(sym, entry["coordinates"])
+            if hand is None:
+                problems.append(f"{sym}: coordinates: {why}")
+                continue
+            m, span37, notes37 = hand
+        elif m is None:
             problems.append(f"{sym}: no MANE Select row on a primary chromosome (dropped)")
             continue
-        span37, notes37 = grch37_span(sym, [sym] + list(entry.get("previous_symbols") or []),
-                                      m, table37, table38)
+        else:
+            span37, notes37 = grch37_span(sym, [sym] + list(entry.get("previous_symbols") or []),
+                                          m, table37, table38)
         genes.append({
             "symbol": sym,
             "hgnc_id": m["hgnc_id"],
@@ -271,12 +358,19 @@ def main(argv: Optional[list[str]] = None) -> int:
             "conditions": list(entry["conditions"]),
             "cascade_step": entry["cascade_step"],
             "syndromic": bool(entry.get("syndromic", False)),
+            "evidence_level": entry.get("evidence_level"),
+            "evidence_source": list(entry.get("evidence_source") or []),
+            "evidence_date": str(entry.get("evidence_date")),
             "notes": list(entry.get("notes") or []) + notes37,
             "hpo_justification": entry.get("hpo_justification", "") or "",
         })
+    excluded = read_excluded(args.excluded) if args.excluded else []
+    for e in excluded:
+        if e["symbol"] in seen:
+            problems.append(f"{e['symbol']}: both in the seed and in the exclusions list")
     for p in problems:
         print(f"curate_panel: {p}", file=sys.stderr)
-    if any("unknown seed keys" in p or "duplicate" in p for p in problems):
+    if any("dropped" not in p for p in problems):  # a gene without MANE row is a warning only
         return 1
 
     header = f"""# irdtriage curated IRD gene panel -- GENERATED by scripts/curate_panel.py; edit
@@ -286,6 +380,8 @@ def main(argv: Optional[list[str]] = None) -> int:
 # panels/curation/seed.yaml (curated from the curators' knowledge, from memory; checked
 # against HPO annotations and MANE by tests/external/). Identifiers and coordinates are
 # copied from the sources below. Coordinates are 1-based inclusive; chromosomes without "chr".
+# Evidence levels and sources follow panels/curation/POLICY.md. Genes without a MANE Select row
+# (chrM) carry hand-given identifiers and rCRS (NC_012920.1) coordinates cited in their notes.
 name: {args.name}
 version: {q(args.version)}
 sources:
@@ -314,11 +410,17 @@ sources:
   file: {q(args.seed.as_posix() if not args.seed.is_absolute() else args.seed.name)}
   sha256: {sha256(args.seed)}
 gene_count: {len(genes)}
-genes:
 """
+    if args.excluded is not None:
+        header += f"""exclusions:
+  file: {q(args.excluded.as_posix() if not args.excluded.is_absolute() else args.excluded.name)}
+  sha256: {sha256(args.excluded)}
+excluded:
+""" + "".join(f"  - {{symbol: {q(e['symbol'])}, reason: {q(e['reason'])}}}\n" for e in excluded)
+    header += "genes:\n"
     text = header + "\n".join(gene_yaml(g) for g in genes) + "\n"
     yaml.safe_load(text)  # must round-trip
-    args.out.write_text(text)
+    refdata_tables.write_text_atomic(args.out, text)
     print(f"curate_panel: wrote {len(genes)} genes to {args.out}", file=sys.stderr)
     return 0
 

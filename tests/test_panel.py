@@ -442,3 +442,41 @@ def test_curate_reads_only_mane_select(tmp_path):
     mane = cp.read_mane(f)
     assert list(mane) == ["AAA"]
     assert mane["AAA"]["refseq_transcript"] == "NM_1.1" and mane["AAA"]["chrom"] == "X"
+
+
+# ---------------------------------------------------------------------------
+# Hand-given chrM coordinates and evidence fields in the curation script
+# ---------------------------------------------------------------------------
+def test_curate_hand_coordinates_only_on_the_rcrs():
+    # rCRS NC_012920.1 is 16,569 bp (Andrews et al. 1999, Nat Genet 23:147; from memory);
+    # MT-ND6 is complement(14149..14673) in the NCBI RefSeq NC_012920.1 feature table.
+    mod = _curate_module()
+    block = {"hgnc_id": "HGNC:7462", "name": "ND6", "refseq_transcript": "NC_012920.1",
+             "refseq_protein": "YP_003024037.1", "ensembl_transcript": "ENST00000361681.2",
+             "strand": "-", "start": 14149, "end": 14673, "source": "NC_012920.1 feature table"}
+    (row, span37, notes), why = mod.hand_coordinates("MT-ND6", block)
+    assert why == "" and row["chrom"] == "MT" and (row["start"], row["end"]) == (14149, 14673)
+    assert span37 == {"chrom": "MT", "start": 14149, "end": 14673}
+    assert "NC_012920.1 feature table" in notes[0]
+    for bad, words in ((dict(block, refseq_transcript="NM_000001.1"), "rCRS"),
+                       (dict(block, end=16570), "16569"),
+                       (dict(block, source=" "), "source"),
+                       ({k: v for k, v in block.items() if k != "strand"}, "missing")):
+        hit, why = mod.hand_coordinates("MT-ND6", bad)
+        assert hit is None and words in why
+
+
+def test_curate_evidence_fields_checked():
+    mod = _curate_module()
+    ok = {"evidence_level": "limited", "evidence_source": ["OMIM:613617"], "evidence_date": "2026-12-02"}
+    assert mod.evidence_problems("G", ok) == []
+    assert "evidence_level" in mod.evidence_problems("G", dict(ok, evidence_level="strong"))[0]
+    assert "evidence_source" in mod.evidence_problems("G", dict(ok, evidence_source=[]))[0]
+    assert "evidence_date" in mod.evidence_problems("G", dict(ok, evidence_date="2026-12"))[0]
+
+
+def test_panel_evidence_level_validated_with_line(tmp_path):
+    text = PANEL.replace("    cascade_step: photon_capture\n",
+                         "    cascade_step: photon_capture\n    evidence_level: strong\n    evidence_source: [x]\n", 1)
+    err, p, _c = _error(tmp_path, text)
+    assert "evidence_level 'strong'" in str(err) and err.line == _line_of(text, "evidence_level")

@@ -73,14 +73,39 @@ def table38():
     return _table(GRCH38)
 
 
+# chrM genes have no MANE row; their spans on the revised Cambridge Reference Sequence
+# (NC_012920.1, 1-based inclusive, strand), typed here from the NCBI RefSeq NC_012920.1 feature
+# table (MT-ND1 CDS 3307..4262, MT-TL1 tRNA 3230..3304, MT-ATP6 CDS 8527..9207, MT-ND6 CDS
+# complement(14149..14673)); MT-ND4 and MT-ND5 from memory (gene 10760..12137, 12337..14148).
+RCRS_SPANS = {
+    "MT-ND1": (3307, 4262, "+"), "MT-TL1": (3230, 3304, "+"), "MT-ATP6": (8527, 9207, "+"),
+    "MT-ND4": (10760, 12137, "+"), "MT-ND5": (12337, 14148, "+"), "MT-ND6": (14149, 14673, "-"),
+}
+
+
 def test_panel_size(panel):
-    assert len(panel.genes) >= 250
+    # inclusion policy target (panels/curation/POLICY.md): every admitted gene, at least 330
+    assert len(panel.genes) >= 330
+
+
+def test_chrm_genes_on_the_rcrs_in_both_builds(panel, mane_select):
+    mito = {s: g for s, g in panel.genes.items() if g.grch38.chrom == "MT"}
+    assert sorted(mito) == sorted(RCRS_SPANS)
+    for sym, g in mito.items():
+        start, end, strand = RCRS_SPANS[sym]
+        assert sym not in mane_select, sym  # hand-given coordinates only where MANE has no row
+        assert g.refseq_transcript == "NC_012920.1" and g.inheritance == ("MT",), sym
+        assert (g.grch38.start, g.grch38.end, g.strand) == (start, end, strand), sym
+        assert (g.grch37.chrom, g.grch37.start, g.grch37.end) == ("MT", start, end), sym
+        assert any("rCRS" in n for n in g.notes), sym  # the note carries the citation
 
 
 def test_every_gene_agrees_with_mane_select(panel, mane_select):
     # Source: MANE v1.5 summary, MANE Select rows.
     problems = []
     for sym, g in panel.genes.items():
+        if g.grch38.chrom == "MT":
+            continue  # no MANE row: checked against the rCRS above
         rows = mane_select.get(sym)
         if not rows or len(rows) != 1:
             problems.append(f"{sym}: {len(rows or [])} MANE Select rows")
@@ -137,6 +162,8 @@ def test_grch37_spans_agree_with_gencode_table(panel, table37, table38, mane_sel
     # moved by that transcript's GRCh38->GRCh37 offset.
     problems, missing = [], []
     for sym, g in panel.genes.items():
+        if g.grch38.chrom == "MT":
+            continue  # the tables carry no mitochondrial rows
         names = [sym] + [n.split("named ")[1].split(" ")[0] for n in g.notes if "table row named" in n]
         row = next((table37[n] for n in reversed(names) if n in table37), None)
         if row is None:
