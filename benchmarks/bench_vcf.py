@@ -25,6 +25,8 @@ import sys
 import time
 from pathlib import Path
 
+import pysam
+
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
@@ -150,9 +152,9 @@ def generate(path: Path, n_records: int, seed: int, regions=None) -> None:
         regions = [(c, 1, n) for c, n in GRCH38.items()]
     total = sum(e - s for _, s, e in regions)
     tmp = path.with_suffix(".part")
-    with open(tmp, "wb") as out:
-        proc = subprocess.Popen(["bgzip", "-@2", "-c"], stdin=subprocess.PIPE, stdout=out)
-        w = proc.stdin
+    from pysam.libcbgzf import BGZFile  # htslib's BGZF writer as bundled with pysam (no bgzip binary)
+
+    with BGZFile(str(tmp), "wb") as w:
         w.write(HEADER.format(contigs=contigs).encode())
         by_chrom: dict[str, list] = {}
         for c, s, e in regions:
@@ -176,11 +178,8 @@ def generate(path: Path, n_records: int, seed: int, regions=None) -> None:
                     w.write("".join(buf).encode())
                     buf.clear()
             w.write("".join(buf).encode())
-        w.close()
-        if proc.wait() != 0:
-            raise SystemExit("bgzip failed")
     os.replace(tmp, path)
-    subprocess.run(["tabix", "-f", "-p", "vcf", str(path)], check=True)
+    pysam.tabix_index(str(path), preset="vcf", force=True)
 
 
 def exome_regions(rng: random.Random, n: int = 20000):

@@ -80,6 +80,23 @@ def _format_list(text: str) -> list[str]:
     return list(dict.fromkeys(items))
 
 
+class _OneLineErrors(argparse.ArgumentParser):
+    """Usage mistakes get the same one-line form as every other error (exit 2)."""
+
+    def error(self, message: str):  # type: ignore[override]
+        self.exit(2, f"irdtriage: error: {self.prog}: {message} (see '{self.prog} --help')\n")
+
+
+def _non_negative_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}")
+    if value < 0:
+        raise argparse.ArgumentTypeError(f"must be 0 or more, got {value}")
+    return value
+
+
 def _formats(text: str) -> list[str]:
     """--formats of triage/demo: result.json is always written, every other output derives from it."""
     items = _format_list(text)
@@ -87,7 +104,7 @@ def _formats(text: str) -> list[str]:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = _OneLineErrors(
         prog="irdtriage",
         description="Triage variants in inherited retinal disease genes (decision support only).",
         epilog=CAUTION,
@@ -127,8 +144,8 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--scores", metavar="FILE", action="append", default=[],
                    help="tabix-indexed score table with columns chrom, pos, ref, alt, score; the score is "
                         "named by the file (revel.tsv.gz) or as NAME=PATH (repeatable)")
-    t.add_argument("--min-dp", type=int, default=None, help="minimum read depth (default 8)")
-    t.add_argument("--min-gq", type=int, default=None, help="minimum genotype quality (default 20)")
+    t.add_argument("--min-dp", type=_non_negative_int, default=None, help="minimum read depth (default 8)")
+    t.add_argument("--min-gq", type=_non_negative_int, default=None, help="minimum genotype quality (default 20)")
     t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
     t.add_argument("--all-variants", action="store_true",
                    help="also report common alleles (BA1) and intronic/flanking alleles without splice evidence")

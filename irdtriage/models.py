@@ -44,6 +44,18 @@ GENOTYPE_FITS = (
     "single heterozygous in a recessive gene",
     "no qualifying finding",
 )
+# Reader-facing wording of each genotype fit (keys stay as above in result.json).
+GENOTYPE_FIT_LABELS = {
+    "biallelic in trans": "two alleles, on different copies (in trans)",
+    "biallelic phase unknown": "two alleles, phase not determined",
+    "homozygous": "homozygous",
+    "hemizygous": "hemizygous",
+    "heterozygous in a dominant gene": "one allele in a dominant gene",
+    "de novo": "de novo (absent in both parents)",
+    "single heterozygous in a recessive gene": "one allele only in a recessive gene",
+    "no qualifying finding": "no qualifying finding",
+}
+
 CASE_STATUSES = ("SOLVED", "IN_PROGRESS", "UNSOLVED")
 INTERPRETATION_STATUSES = ("CAUSATIVE", "CANDIDATE", "CONTRIBUTORY", "REJECTED", "UNKNOWN_STATUS")
 

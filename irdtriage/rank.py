@@ -75,7 +75,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Iterable, Optional, Sequence
 
-from . import CAUTION
+from . import CAUTION, models
 from .genotype import FIT_PREFERENCE
 from .models import Finding, Gene, GeneHypothesis, Panel
 from .panel import NOT_SOLVING_LEVELS
@@ -213,7 +213,7 @@ def _reason(h: GeneHypothesis, gene: Optional[Gene]) -> str:
     if blocked(h):
         ph += "; not an explanation: consequence and population frequency unknown for " + ", ".join(
             f.id for f in fs if unassessable(f))
-    return (f"{h.genotype_fit}{phase} in a {inh} gene; alleles: {alleles}; {ph}; score "
+    return (f"{_fit_words(h.genotype_fit)}{phase} in a {inh} gene; alleles: {alleles}; {ph}; score "
             f"{1 - PHENOTYPE_SHARE:.1f} x genotype ({_fit_weight(h, gene):.2f} x {_class_weight(h):.2f}) + "
             f"{PHENOTYPE_SHARE:.1f} x phenotype {_pheno_weight(h):.3f} = {h.score:.3f}")
 
@@ -273,7 +273,7 @@ def _mode(h: GeneHypothesis) -> str:
 def _describe(h: GeneHypothesis) -> str:
     fs = fit_findings(h)
     alleles = " + ".join(f"{(f.annotation.hgvs_c or f.variant.key)} ({_cls(f)})" for f in fs)
-    return f"{h.symbol} {h.genotype_fit}" + _phase_note(h) + (f": {alleles}" if alleles else "")
+    return f"{h.symbol} {_fit_words(h.genotype_fit)}" + _phase_note(h) + (f": {alleles}" if alleles else "")
 
 
 def _phase_note(h: GeneHypothesis) -> str:
@@ -442,3 +442,8 @@ def assign_interpretation_status(ranked: Sequence[GeneHypothesis], call: Optiona
         if solving:
             solved_done = True
     return out
+
+
+def _fit_words(fit: str) -> str:
+    """The genotype fit as a reader reads it (models.GENOTYPE_FIT_LABELS), for summaries and reasons."""
+    return models.GENOTYPE_FIT_LABELS.get(fit, fit)

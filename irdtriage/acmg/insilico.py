@@ -65,8 +65,9 @@ def evaluate_insilico(ann: Optional[Annotation], rules: Rules, ev: dict) -> list
             pp3 = result("PP3", True, strength, f"{s_txt}" + (f" -> {p_str}" if p_str else "") +
                          (f"; {sai_txt} >= {ins['spliceai_pp3']}" if splice_p else f"; {sai_txt}"), **evidence)
         else:
-            pp3 = result("PP3", False if value is not None else None, None,
-                         f"{s_txt} below PP3 threshold {min(spec['pp3'].values())}; {sai_txt}", **evidence)
+            below = (f"{s_txt} below PP3 threshold {min(spec['pp3'].values())}" if value is not None
+                     else f"{s_txt}; SpliceAI alone below the splice threshold {ins['spliceai_pp3']}")
+            pp3 = result("PP3", False if value is not None else None, None, f"{below}; {sai_txt}", **evidence)
         splice_ok = sai is None or sai <= ins["spliceai_benign"]
         if b_str and splice_ok:
             bp4 = result("BP4", True, b_str, f"{s_txt} -> {b_str} (benign interval); {sai_txt}"

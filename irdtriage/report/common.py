@@ -4,7 +4,7 @@ from __future__ import annotations
 import re
 from typing import Any, Iterable, Optional
 
-from irdtriage import CAUTION
+from irdtriage import CAUTION, models
 
 STRENGTH_ABBR = {"Supporting": "Sup", "Moderate": "Mod", "Strong": "Str", "VeryStrong": "VStr", "StandAlone": "SA"}
 
@@ -147,16 +147,7 @@ def fmt(v: Any, none: str = "—") -> str:
 # Display wording shared by the writers (the result keeps the keys; readers see these)
 # ---------------------------------------------------------------------------
 # Genotype-fit keys (irdtriage.models.GENOTYPE_FITS, the schema enum) -> plain words for readers.
-GENOTYPE_FIT_LABELS = {
-    "biallelic in trans": "two alleles, on different copies (in trans)",
-    "biallelic phase unknown": "two alleles, phase not determined",
-    "homozygous": "homozygous",
-    "hemizygous": "hemizygous",
-    "heterozygous in a dominant gene": "one allele in a dominant gene",
-    "de novo": "de novo (absent in both parents)",
-    "single heterozygous in a recessive gene": "one allele only in a recessive gene",
-    "no qualifying finding": "no qualifying finding",
-}
+GENOTYPE_FIT_LABELS = models.GENOTYPE_FIT_LABELS
 
 
 def genotype_fit_label(key: Optional[str]) -> str:

@@ -24,12 +24,14 @@ from .common import (
     criterion_label,
     fmt,
     gene_findings,
+    genotype_fit_label,
     input_limits,
     phenotype_rank,
+    strip_provenance,
+    zygosity_label,
 )
 
 MAX_WIDTH = 100
-ZYG_SHORT = {"heterozygous": "het", "homozygous": "hom", "hemizygous": "hemi", "reference": "ref", "no call": "nc"}
 
 # Own palette for the terminal (styles only; meaning is always in the text as well).
 ST_STATUS = "bold reverse"
@@ -78,7 +80,7 @@ def _gene_line(g: dict) -> Text:
     cls = g.get("strongest_class")
     t.append(f" {CLASS_SHORT.get(cls, fmt(cls))}", style=ST_MARK)
     t.append(f" {'/'.join(g.get('inheritance') or []) or '?'}")
-    t.append(f" · {g.get('genotype_fit', '?')}")
+    t.append(f" · {genotype_fit_label(g.get('genotype_fit'))}")
     cal = pm.get("calibrated")
     t.append(f" · pheno {cal:.2f}" if isinstance(cal, (int, float)) else " · pheno n/a")
     place = phenotype_rank(pm)  # the gene's place by phenotype alone (ties shown as a range), when present
@@ -112,7 +114,7 @@ def _finding_line(f: dict) -> Text:
     hg = " ".join(x for x in (f.get("hgvs_c"), f.get("hgvs_p")) if x)
     if hg:
         t.append(hg + " ")
-    t.append(f"{ZYG_SHORT.get(f.get('zygosity'), f.get('zygosity'))} ")
+    t.append(f"{zygosity_label(f.get('zygosity'), short=True)} ")
     cls = f.get("classification")
     t.append(f"{CLASS_SHORT.get(cls, fmt(cls))} ", style=ST_MARK)
     pts = f.get("points")
@@ -210,7 +212,7 @@ def render_terminal(
             p(Text("no gene hypothesis"))
         _ind(console, Text("CAUTION: " + cautions(result)[0], style=ST_CAUTION), hang=0)
         return
-    _ind(console, Text(case.get("summary") or ""), hang=0)
+    _ind(console, Text(strip_provenance(case.get("summary"))), hang=0)
     p()
     p(Text("Gene hypotheses (ranked)", style=ST_HEAD))
     _ind(console, Text("class P LP VUS LB B · criteria strength shown if not default: Sup Mod Str VStr", style=ST_DIM))
@@ -222,7 +224,7 @@ def render_terminal(
         if st:
             _ind(console, Text(f"step: {st.get('title', st.get('id'))}", style=ST_DIM), 4)
         if g.get("reason") and verbose:
-            _ind(console, Text(g["reason"], style=ST_DIM), 4)
+            _ind(console, Text(strip_provenance(g["reason"]), style=ST_DIM), 4)
         for f in gene_findings(result, g):
             _ind(console, _finding_line(f), 4)
             if verbose:
@@ -237,7 +239,7 @@ def render_terminal(
         p()
         p(Text("Next steps", style=ST_HEAD))
         for s in steps:
-            _ind(console, Text("- " + s), 2)  # continuation lines under the text, not the dash
+            _ind(console, Text("- " + strip_provenance(s)), 2)  # continuation lines under the text, not the dash
     warnings = result.get("warnings") or []
     if warnings:
         p()

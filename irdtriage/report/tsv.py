@@ -1,7 +1,7 @@
 """findings.tsv: one row per finding, tab-separated, written with the csv module.
 
-Line 1 is the header with the column names in ``COLUMNS`` (stable; new columns are only
-appended), so the file opens in a spreadsheet as a table. There is no comment line: the run
+Line 1 is the header with the column names in ``COLUMNS`` (stable; new columns are added just before
+the last one, ``caution``), so the file opens in a spreadsheet as a table. There is no comment line: the run
 metadata (tool, panel, rules, build, sample) is in result.json, and the clinical caution is the
 last column (``caution``) of every row, so it travels with any row copied out.
 ``genotype_fit`` and ``cascade_step`` hold reader labels (``common.genotype_fit_label``, the
@@ -28,8 +28,8 @@ COLUMNS = (
     "consequence", "zygosity", "genotype", "depth", "genotype_quality", "allele_balance",
     "filters", "quality_flags", "classification", "points", "posterior", "met_criteria",
     "not_evaluable", "interpretation_status", "cascade_step",
-    "cascade_step_id", "genotype_fit_id", "protein_accession", "ad", "caution",
-    "phenotype_rank", "input_limits",
+    "cascade_step_id", "genotype_fit_id", "protein_accession", "ad", "phenotype_rank", "input_limits",
+    "caution",
 )
 
 
