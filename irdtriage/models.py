@@ -258,6 +258,13 @@ class Finding:
     criteria: list[CriterionResult] = field(default_factory=list)
     classification: Optional[Classification] = None
     interpretation_status: str = "UNKNOWN_STATUS"
+    # why a non-coding allele is reported (listed recurrent allele, or candidate non-coding allele
+    # completing a genotype): irdtriage.noncoding.NoncodingNote, None for every other finding
+    noncoding: Any = None
+
+    @property
+    def noncoding_candidate(self) -> bool:
+        return self.noncoding is not None and self.noncoding.kind == "candidate"
 
     @property
     def passes_quality(self) -> bool:

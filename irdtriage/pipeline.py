@@ -245,15 +245,34 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         warnings.append(
             f"no consequence annotation: only alleles in exons +/- {regions.padding} bp of the panel genes were "
             f"read and assessed (use --all-variants to read whole gene spans); {regions.describe()}")
+    # ... except listed recurrent non-coding alleles and candidate non-coding alleles that would
+    # complete a genotype in a gene whose phenotype fits (or with no phenotype given): see noncoding.py
+    from .noncoding import held_back_warning, select as select_noncoding
+    from .noncoding_alleles import load_noncoding_alleles
+    from .rank import PHENOTYPE_FITS
+
+    nc = select_noncoding(
+        findings, panel, proband, curated=curated, listed_table=load_noncoding_alleles(),
+        matches=matches, phenotype_given=matcher is not None,
+        fits_retina=None if retinal is None else bool(retinal[0]), threshold=PHENOTYPE_FITS,
+        mother=mother, father=father)
+    for f in findings:
+        f.noncoding = nc.notes.get(id(f))
+    w = None if opts.all_variants else held_back_warning(nc.held_back)
+    if w:
+        warnings.append(w)
     if not opts.all_variants:
         kept = []
         for f in findings:
-            why = _not_reported(f, curated)
+            why = None if f.noncoding is not None else _not_reported(f, curated)
             if why is None:
                 kept.append(f)
             else:
                 counts_extra[why] += 1
         findings = kept
+    counts_extra["noncoding_candidates_reported"] = sum(1 for f in findings if f.noncoding_candidate)
+    counts_extra["noncoding_listed_reported"] = sum(1 for f in findings if f.noncoding is not None
+                                                    and not f.noncoding_candidate)
     for i, f in enumerate(findings, 1):
         f.id = f"F{i}"
     w = male_heterozygous_x_warning(findings, sexes, intake.build)

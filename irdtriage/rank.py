@@ -37,6 +37,13 @@ Invariants (checked in ``tests/test_rank.py``):
    hypothesis with no qualifying finding scores 0 whatever its phenotype.
 3. *Deterministic order.* Ties are broken by fit preference, then class weight, then gene
    symbol.
+4. *A candidate non-coding allele ranks between.* When the genotype fit rests on a candidate
+   non-coding allele (``irdtriage.noncoding``: rare, intronic/UTR/flanking, no splice prediction,
+   kept only because it completes the genotype), G is capped at ``NONCODING_GENOTYPE = 0.16``,
+   so the score lies in 0.9 x 0.16 + 0.1 x [0.125, 1] = [0.157, 0.244]: below the weakest coding
+   complete or biallelic fit (>= 0.27, invariant 1) and above every carrier state (<= 0.145) and
+   every gene with no qualifying finding (0). Listed recurrent non-coding alleles
+   (``panels/noncoding_alleles.yaml``) are not capped: their class is weighed like any other.
 
 This is a design choice for a gene panel that already selects for the phenotype: allele
 evidence is the observation, the phenotype match is a weak prior over panel genes (the
@@ -50,7 +57,8 @@ Case call (GA4GH Phenopacket status words)
   homozygous, hemizygous, heterozygous in a dominant gene, de novo) made only of
   Pathogenic / Likely pathogenic alleles, and the phenotype fits (calibrated match >= 0.5,
   no conflicting hallmark, and the phenotype is not judged non-retinal).
-* ``IN_PROGRESS``: otherwise, when a candidate exists: a complete fit that includes a
+* ``IN_PROGRESS``: otherwise, when a candidate exists: a complete fit that rests on a
+  candidate non-coding allele (never SOLVED, whatever its class), a complete fit that includes a
   VUS, a biallelic genotype of unknown phase, a P/LP complete fit whose phenotype is
   unknown or poor, or a single heterozygous allele in a recessive gene with a strong
   phenotype match (P/LP single hits also count when no phenotype was given).
@@ -101,6 +109,7 @@ NO_PHENOTYPE_WEIGHT = 0.625
 PHENOTYPE_SHARE = 0.1  # largest change of the score the phenotype can make (see module docstring)
 CONFLICT_FACTOR = 0.5
 PHENOTYPE_FITS = 0.5  # calibrated match from which the phenotype counts as fitting the gene
+NONCODING_GENOTYPE = 0.16  # cap on G for a fit resting on a candidate non-coding allele (invariant 4)
 
 COMPLETE_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")
 BIALLELIC_FITS = ("biallelic in trans", "biallelic phase unknown")
@@ -161,6 +170,17 @@ def fit_findings(h: GeneHypothesis) -> list[Finding]:
     return pool[:2] if h.genotype_fit in BIALLELIC_FITS else pool[:1]
 
 
+def noncoding_candidate(f: Finding) -> bool:
+    """A candidate non-coding allele (irdtriage.noncoding): kept only because it completes a genotype."""
+    note = getattr(f, "noncoding", None)
+    return note is not None and getattr(note, "kind", "") == "candidate"
+
+
+def relies_on_noncoding(h: GeneHypothesis) -> bool:
+    """The hypothesis's genotype fit rests on at least one candidate non-coding allele."""
+    return any(noncoding_candidate(f) for f in fit_findings(h))
+
+
 def _class_weight(h: GeneHypothesis) -> float:
     fs = fit_findings(h)
     if not fs:
@@ -187,8 +207,12 @@ def _fit_weight(h: GeneHypothesis, gene: Optional[Gene]) -> float:
 
 
 def genotype_evidence(h: GeneHypothesis, gene: Optional[Gene]) -> float:
-    """G = fit weight x class weight of the weakest allele in the fit (0..1)."""
-    return _fit_weight(h, gene) * _class_weight(h)
+    """G = fit weight x class weight of the weakest allele in the fit (0..1), capped at
+    NONCODING_GENOTYPE when the fit rests on a candidate non-coding allele (invariant 4)."""
+    g = _fit_weight(h, gene) * _class_weight(h)
+    if relies_on_noncoding(h):
+        g = min(g, NONCODING_GENOTYPE)
+    return g
 
 
 def score_hypothesis(h: GeneHypothesis, gene: Optional[Gene]) -> float:
@@ -213,8 +237,14 @@ def _reason(h: GeneHypothesis, gene: Optional[Gene]) -> str:
     if blocked(h):
         ph += "; not an explanation: consequence and population frequency unknown for " + ", ".join(
             f.id for f in fs if unassessable(f))
+    nc = ""
+    if relies_on_noncoding(h):
+        ids = ", ".join(f.id for f in fs if noncoding_candidate(f))
+        ph += (f"; rests on candidate non-coding allele {ids} (no splice evidence): ranked below coding "
+               f"explanations")
+        nc = f" capped at {NONCODING_GENOTYPE:.2f}"
     return (f"{_fit_words(h.genotype_fit)}{phase} in a {inh} gene; alleles: {alleles}; {ph}; score "
-            f"{1 - PHENOTYPE_SHARE:.1f} x genotype ({_fit_weight(h, gene):.2f} x {_class_weight(h):.2f}) + "
+            f"{1 - PHENOTYPE_SHARE:.1f} x genotype ({_fit_weight(h, gene):.2f} x {_class_weight(h):.2f}{nc}) + "
             f"{PHENOTYPE_SHARE:.1f} x phenotype {_pheno_weight(h):.3f} = {h.score:.3f}")
 
 
@@ -250,7 +280,7 @@ def _all_strong(h: GeneHypothesis) -> bool:
 
 def _solving(h: GeneHypothesis, fits_retina) -> bool:
     return (h.genotype_fit in COMPLETE_FITS and _all_strong(h) and _pheno_state(h, fits_retina) is True
-            and not blocked(h))
+            and not blocked(h) and not relies_on_noncoding(h))
 
 
 def _candidate(h: GeneHypothesis, fits_retina) -> bool:
@@ -358,6 +388,10 @@ def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[
 
 def _missing(h: GeneHypothesis, fits_retina) -> str:
     fs = fit_findings(h)
+    nc = [f for f in fs if noncoding_candidate(f)]
+    if nc:
+        return ("rests on the candidate non-coding allele " + ", ".join(f.annotation.hgvs_c or f.variant.key for f in nc)
+                + " (no splice prediction): not a diagnosis until an RNA or minigene study shows its effect")
     if any(_cls(f) == "Uncertain significance" for f in fs):
         return "includes a variant of uncertain significance"
     if h.genotype_fit == "biallelic phase unknown":
@@ -373,6 +407,10 @@ def _gene_steps(h: GeneHypothesis, fits_retina) -> list[str]:
     out: list[str] = []
     a = getattr(h, "assessment", None)
     fs = fit_findings(h)
+    for f in fs:  # candidate non-coding allele or listed recurrent non-coding allele: its own next step
+        note = getattr(f, "noncoding", None)
+        if note is not None and note.next_step:
+            out.append(note.next_step + ".")
     if h.genotype_fit == "biallelic phase unknown":
         out.append(f"Test both parents (or phase by long reads) to show whether the two {g} alleles are in trans.")
     if h.genotype_fit == "single heterozygous in a recessive gene" and not getattr(a, "manifesting_carrier_possible",

@@ -132,6 +132,8 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str],
         "met_criteria": [f"{cr.code}" + ("" if not cr.strength else f"_{cr.strength}")
                          for cr in f.criteria if cr.met],
         "interpretation_status": f.interpretation_status,
+        "noncoding_candidate": f.noncoding_candidate,
+        "noncoding": f.noncoding.to_dict() if f.noncoding is not None else None,
     }
 
 

@@ -262,7 +262,9 @@ def _compact_rows(fs: list[dict], with_gene: bool = True) -> str:
                     + f'<td>{e(hg or "—")}<br><span class="muted small">{e(pos)}</span></td>'
                     f'<td>{e(zygosity_label(f.get("zygosity"), short=True))}</td>'
                     f'<td>{e(fmt(f.get("classification"), "not classified"))}</td>'
-                    f'<td class="crit">{e(criteria_compact(f))}</td><td>{e(fmt(f.get("interpretation_status")))}</td></tr>')
+                    f'<td class="crit">{e(criteria_compact(f))}</td><td>{e(fmt(f.get("interpretation_status")))}'
+                    + (' <span class="small">(candidate non-coding allele)</span>' if f.get("noncoding_candidate") else "")
+                    + "</td></tr>")
     return ("<table class=\"compact\"><thead><tr><th>Finding</th>" + ("<th>Gene</th>" if with_gene else "")
             + "<th>HGVS / position</th><th>Zygosity</th><th>Classification</th><th>Met criteria</th>"
             "<th>Status</th></tr></thead><tbody>" + "".join(rows) + "</tbody></table>")
@@ -327,6 +329,11 @@ def _finding(f: dict) -> str:
         ("Rules / points / Bayes", f"{fmt(f.get('rule_class'))} ({fmt(f.get('rule'))}) / {fmt(f.get('point_class'))} / {fmt(f.get('bayes_class'))}"),
         ("Interpretation status", fmt(f.get("interpretation_status"))),
     ]
+    nc = f.get("noncoding") or {}
+    if nc:
+        head = "Candidate non-coding allele" if f.get("noncoding_candidate") else "Listed recurrent non-coding allele"
+        facts.append((head, strip_provenance(nc.get("reason"))))
+        facts.append(("Next step", strip_provenance(nc.get("next_step"))))
     if f.get("classification_note"):
         facts.append(("Note", f["classification_note"]))
     rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in facts)

@@ -129,6 +129,21 @@ def _finding_line(f: dict) -> Text:
     return t
 
 
+def _noncoding_lines(f: dict) -> list[Text]:
+    """Why a non-coding allele is reported (candidate or listed) and its next step."""
+    nc = f.get("noncoding") or {}
+    if not nc:
+        return []
+    head = "candidate non-coding allele" if f.get("noncoding_candidate") else "listed recurrent non-coding allele"
+    t = Text()
+    t.append(f"{head}: ", style=ST_MARK)
+    t.append(strip_provenance(nc.get("reason")))
+    n = Text()
+    n.append("next step: ", style=ST_MARK)
+    n.append(strip_provenance(nc.get("next_step")))
+    return [t, n]
+
+
 def _criteria_detail(f: dict) -> list[Text]:
     lines = []
     for c in f.get("criteria") or []:
@@ -227,6 +242,8 @@ def render_terminal(
             _ind(console, Text(strip_provenance(g["reason"]), style=ST_DIM), 4)
         for f in gene_findings(result, g):
             _ind(console, _finding_line(f), 4)
+            for line in _noncoding_lines(f):
+                _ind(console, line, 6)
             if verbose:
                 for line in _criteria_detail(f):
                     _ind(console, line, 8)

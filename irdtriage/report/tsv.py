@@ -8,6 +8,10 @@ last column (``caution``) of every row, so it travels with any row copied out.
 step title from panels/cascade.yaml); their keys are in ``genotype_fit_id`` / ``cascade_step_id``.
 ``input_limits`` (every row) names what the input could not support (e.g. no consequence
 annotation), and ``phenotype_rank`` shows ties as ranges ("1–69 of 252").
+``noncoding_candidate`` is ``yes`` for a candidate non-coding allele (reported only because it
+would complete a genotype; see irdtriage/noncoding.py); ``noncoding_reason`` and
+``noncoding_next_step`` say why it (or a listed recurrent non-coding allele) is reported and
+what to do next.
 Lists are joined with ``;`` and unknown values are empty cells.
 """
 from __future__ import annotations
@@ -29,6 +33,7 @@ COLUMNS = (
     "filters", "quality_flags", "classification", "points", "posterior", "met_criteria",
     "not_evaluable", "interpretation_status", "cascade_step",
     "cascade_step_id", "genotype_fit_id", "protein_accession", "ad", "phenotype_rank", "input_limits",
+    "noncoding_candidate", "noncoding_reason", "noncoding_next_step",
     "caution",
 )
 
@@ -79,6 +84,9 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "caution": caution,
             "phenotype_rank": phenotype_rank(g.get("phenotype_match") or {}),  # ties as "1–69 of 252"
             "input_limits": limits,
+            "noncoding_candidate": "yes" if f.get("noncoding_candidate") else None,
+            "noncoding_reason": (f.get("noncoding") or {}).get("reason"),
+            "noncoding_next_step": (f.get("noncoding") or {}).get("next_step"),
         }
 
 
