@@ -440,9 +440,12 @@ class _Converter:
 
     def convert(self, rec: pysam.VariantRecord, counts: dict, line: Optional[int] = None) -> list[Variant]:
         counts["records_in_panel"] += 1
-        alts = rec.alts or ()
+        # ALT "." (or an empty ALT column) means no alternate allele: nothing to triage, but a GT
+        # that names allele 1 there contradicts the record and is refused like any index past ALT
+        alts = tuple(a for a in (rec.alts or ()) if a not in (".", ""))
         self._check(rec, alts, line)
         if not alts:
+            self._check_gt_indexes(rec, 0, line)
             counts["records_without_alt"] += 1
             return []
         try:
