@@ -52,10 +52,29 @@ class Transcript:
     exons: tuple[tuple[int, int], ...]  # 1-based inclusive, ascending genomic order
     refseq: str = ""
     ensembl: str = ""
+    # coding structure (1-based inclusive genomic CDS ends, stop codon included); None when unknown
+    cds_start: Optional[int] = None
+    cds_end: Optional[int] = None
+    protein_length: Optional[int] = None
+    mane_boundaries_match: bool = False
+    mane_end_offsets_nt: tuple[int, int] = (0, 0)
+    source: str = ""
 
     @property
     def exon_count(self) -> int:
         return len(self.exons)
+
+    @property
+    def has_cds(self) -> bool:
+        return self.cds_start is not None and self.cds_end is not None
+
+    def describe(self) -> str:
+        """Short name of the structure for reasons: what it is and how it relates to MANE Select."""
+        rel = ("outer ends equal MANE Select " + self.refseq if self.mane_boundaries_match else
+               f"record {self.refseq}" if self.mane_end_offsets_nt == (0, 0) else
+               f"outer ends differ from MANE Select {self.refseq} by {self.mane_end_offsets_nt[0]}/"
+               f"{self.mane_end_offsets_nt[1]} nt (5'/3')")
+        return f"panel structure {self.build} ({self.source or 'curated transcript'}; {rel})"
 
     def ordered(self) -> list[tuple[int, int]]:
         """Exons in transcript order (5' to 3')."""
@@ -101,7 +120,9 @@ class Coding:
     source: str
 
     def transcript_model(self) -> Transcript:
-        return Transcript(self.symbol, "GRCh38", self.chrom, self.strand, self.exons, self.transcript)
+        return Transcript(self.symbol, "GRCh38", self.chrom, self.strand, self.exons, self.transcript,
+                          cds_start=self.cds_start, cds_end=self.cds_end, protein_length=self.protein_length,
+                          mane_boundaries_match=False, source=f"{self.source}, {self.transcript}")
 
     def describe(self) -> str:
         rel = ("same protein as MANE Select " + self.mane_protein if self.same_protein_as_mane
@@ -181,8 +202,10 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
     if not isinstance(data["transcripts"], list):
         fail(("transcripts",), "transcripts must be a list")
     out: dict[tuple[str, str], Transcript] = {}
-    allowed = {"symbol", "strand", "mane_refseq", "mane_ensembl", "mane_boundaries_match", "exon_count",
-               "grch38", "grch37", "grch37_note"}
+    allowed = {"symbol", "strand", "mane_refseq", "mane_ensembl", "mane_protein", "mane_boundaries_match",
+               "mane_end_offsets_nt", "exon_count", "protein_length", "cds_length", "cds_choice", "table_name",
+               "outside_checks", "grch38", "grch37", "grch37_note"}
+    src_name = str(data.get("structure_source", "")) if isinstance(data, dict) else ""
     for i, t in enumerate(data["transcripts"]):
         w = ("transcripts", i)
         if not isinstance(t, dict):
@@ -195,23 +218,44 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
             fail(w, "transcript needs a gene symbol")
         if t.get("strand") not in ("+", "-"):
             fail(w + ("strand",), f"{sym}: strand must be + or -")
-        if t.get("mane_boundaries_match") is not True:
-            fail(w + ("mane_boundaries_match",), f"{sym}: only transcripts with mane_boundaries_match: true are used")
+        mbm = t.get("mane_boundaries_match")
+        if not isinstance(mbm, bool):
+            fail(w + ("mane_boundaries_match",), f"{sym}: mane_boundaries_match must be true or false")
+        offs = t.get("mane_end_offsets_nt", [0, 0])
+        if not (isinstance(offs, list) and len(offs) == 2 and all(_int(x) for x in offs)) or (mbm != (offs == [0, 0])):
+            fail(w + ("mane_end_offsets_nt",), f"{sym}: mane_end_offsets_nt must be two integers, [0, 0] exactly "
+                                                "when mane_boundaries_match is true")
+        pl, cl = t.get("protein_length"), t.get("cds_length")
+        if (pl is None) != (cl is None):
+            fail(w, f"{sym}: protein_length and cds_length go together")
+        if pl is not None and (not _int(pl) or pl < 1 or not _int(cl) or cl != 3 * (pl + 1)):
+            fail(w + ("cds_length",), f"{sym}: cds_length must be 3 x (protein_length + 1) (stop codon included)")
         for build, key in (("GRCh38", "grch38"), ("GRCh37", "grch37")):
             b = t.get(key)
             if b is None:
                 if key == "grch38":
                     fail(w, f"{sym}: grch38 exons are required")
                 continue
-            if not isinstance(b, dict) or set(b) != {"chrom", "exons"}:
-                fail(w + (key,), f"{sym}: {key} must have chrom and exons")
+            if not isinstance(b, dict) or set(b) not in ({"chrom", "exons"}, {"chrom", "exons", "cds_start", "cds_end"}):
+                fail(w + (key,), f"{sym}: {key} must have chrom and exons (and cds_start, cds_end together)")
             exons = _exons(b["exons"], fail, w + (key, "exons"))
             if "exon_count" in t and t["exon_count"] != len(exons):
                 fail(w + ("exon_count",), f"{sym}: exon_count {t['exon_count']} but {len(exons)} {key} exons")
+            cs, ce = b.get("cds_start"), b.get("cds_end")
+            if (cs is None) != (pl is None):
+                fail(w + (key,), f"{sym}: {key} CDS ends need protein_length and cds_length, and the reverse")
+            if cs is not None:
+                if not (_int(cs) and _int(ce) and cs <= ce):
+                    fail(w + (key, "cds_start"), f"{sym}: cds_start/cds_end must be integers, start <= end")
+                exonic = sum(min(y, ce) - max(x, cs) + 1 for x, y in exons if min(y, ce) >= max(x, cs))
+                if not any(x <= cs <= y for x, y in exons) or not any(x <= ce <= y for x, y in exons) or exonic != cl:
+                    fail(w + (key, "cds_start"), f"{sym}: {key} CDS ends must lie in exons and hold cds_length "
+                                                  f"({cl}) exonic nt, found {exonic}")
             if (sym, build) in out:
                 fail(w, f"{sym} is listed twice")
             out[(sym, build)] = Transcript(sym, build, str(b["chrom"]), t["strand"], exons,
-                                           str(t.get("mane_refseq", "")), str(t.get("mane_ensembl", "")))
+                                           str(t.get("mane_refseq", "")), str(t.get("mane_ensembl", "")),
+                                           cs, ce, pl, mbm, tuple(offs), src_name)
     coding = _coding(data.get("coding") or [], fail)
     return TranscriptModel(str(data["name"]), str(data["version"]), hashlib.sha256(raw).hexdigest(), str(p), out,
                            coding)
@@ -350,3 +394,131 @@ def nmd_predicted(hit: Optional[ExonHit], kind: str = "stop", fs_ter_codons: Opt
                      "NMD predicted"
     return False, (f"{where}: stop within {d} nt of the last exon-exon junction (<= {nmd_nt} + {STOP_CODON_SLACK} nt "
                    "codon slack; transcript model): NMD not predicted")
+
+
+# ---------------------------------------------------------------------------------------------
+# Coding positions from the structure (transcripts with cds_start/cds_end).  Offsets count exonic
+# nt in transcript orientation; c. numbering follows HGVS: c.1 is the A of the start codon, 5' UTR
+# positions are c.-N, 3' UTR positions c.*N, intronic positions c.N+k / c.N-k from the nearest exon.
+
+def tx_offset(tx: Transcript, pos: int) -> Optional[int]:
+    """1-based exonic offset of ``pos`` from the transcript's 5' end; None when not exonic."""
+    k = 0
+    for s, e in tx.ordered():
+        if s <= pos <= e:
+            return k + (pos - s + 1 if tx.strand == "+" else e - pos + 1)
+        k += e - s + 1
+    return None
+
+
+def coding_offsets(tx: Transcript) -> Optional[tuple[int, int]]:
+    """Transcript offsets of the CDS's first base (A of ATG) and last base (stop codon's 3' base)."""
+    if not tx.has_cds:
+        return None
+    five, three = (tx.cds_start, tx.cds_end) if tx.strand == "+" else (tx.cds_end, tx.cds_start)
+    a, b = tx_offset(tx, five), tx_offset(tx, three)
+    return (a, b) if a is not None and b is not None else None
+
+
+def c_number(tx: Transcript, pos: int) -> Optional[int]:
+    """c. number of an exonic position inside the CDS (1 .. CDS length); None elsewhere."""
+    co, off = coding_offsets(tx), tx_offset(tx, pos)
+    if co is None or off is None or not co[0] <= off <= co[1]:
+        return None
+    return off - co[0] + 1
+
+
+def hgvs_c_position(tx: Transcript, pos: int) -> Optional[str]:
+    """HGVS c. position of a genomic position on the structure ("123", "-5", "*10", "123+1",
+    "124-2"); None without a CDS or outside the transcript."""
+    co = coding_offsets(tx)
+    if co is None or not tx.exons or pos < tx.exons[0][0] or pos > tx.exons[-1][1]:
+        return None
+
+    def exonic(off: int) -> str:
+        if off < co[0]:
+            return f"-{co[0] - off}"
+        if off > co[1]:
+            return f"*{off - co[1]}"
+        return str(off - co[0] + 1)
+
+    off = tx_offset(tx, pos)
+    if off is not None:
+        return exonic(off)
+    order = tx.ordered()
+    for k in range(1, len(order)):
+        a, b = order[k - 1], order[k]
+        if tx.strand == "+" and a[1] < pos < b[0]:
+            up, down = pos - a[1], b[0] - pos
+            last, first = tx_offset(tx, a[1]), tx_offset(tx, b[0])
+        elif tx.strand == "-" and b[1] < pos < a[0]:
+            up, down = a[0] - pos, pos - b[1]
+            last, first = tx_offset(tx, a[0]), tx_offset(tx, b[1])
+        else:
+            continue
+        return f"{exonic(last)}+{up}" if up <= down else f"{exonic(first)}-{down}"
+    return None
+
+
+def residue(tx: Transcript, pos: int) -> Optional[int]:
+    """Amino-acid residue whose codon holds ``pos`` (1 .. protein length + 1 for the stop codon)."""
+    c = c_number(tx, pos)
+    return None if c is None else (c + 2) // 3
+
+
+@dataclass(frozen=True)
+class SpliceSite:
+    kind: str  # "donor" (intron 5' end, after exon k) or "acceptor" (intron 3' end, before exon k + 1)
+    intron_number: int  # intron k lies between exons k and k + 1 (transcript order)
+    offset: int  # 1 or 2: +1/+2 for a donor, -1/-2 for an acceptor
+    skipped_exon: int  # the exon whose skipping the site's loss predicts (k for a donor, k + 1 for an acceptor)
+
+
+def splice_site(tx: Transcript, pos: int) -> Optional[SpliceSite]:
+    """The canonical +/-1,2 splice site holding ``pos`` on the structure, else None."""
+    order = tx.ordered()
+    for k in range(1, len(order)):
+        a, b = order[k - 1], order[k]
+        if tx.strand == "+":
+            up, down = pos - a[1], b[0] - pos
+        else:
+            up, down = a[0] - pos, pos - b[1]
+        if up > 0 and down > 0:
+            if up <= 2:
+                return SpliceSite("donor", k, up, k)
+            if down <= 2:
+                return SpliceSite("acceptor", k, down, k + 1)
+            return None
+    return None
+
+
+def exon_coding_nt(tx: Transcript, exon_number: int) -> tuple[int, bool, bool]:
+    """(coding nt in the exon, exon holds the CDS start, exon holds the CDS end) for a 1-based exon
+    number in transcript order."""
+    s, e = tx.ordered()[exon_number - 1]
+    assert tx.cds_start is not None and tx.cds_end is not None
+    n = max(0, min(e, tx.cds_end) - max(s, tx.cds_start) + 1)
+    five, three = (tx.cds_start, tx.cds_end) if tx.strand == "+" else (tx.cds_end, tx.cds_start)
+    return n, s <= five <= e, s <= three <= e
+
+
+def junction_distance_at_c(tx: Transcript, c: int) -> Optional[int]:
+    """Exonic nt from c. position ``c`` (inclusive) to the 3' end of the penultimate exon; <= 0 when
+    ``c`` lies in the last exon (counted back: 0 is the last exon's first base)."""
+    co = coding_offsets(tx)
+    if co is None or tx.exon_count < 2:
+        return None
+    order = tx.ordered()
+    junction = sum(e - s + 1 for s, e in order[:-1])  # offset of the penultimate exon's last base
+    return junction - (co[0] + c - 1) + 1
+
+
+def nmd_at_stop(tx: Transcript, stop_last_c: int, what: str, nmd_nt: int = NMD_NT) -> tuple[bool, str]:
+    """50-nt rule for a stop codon whose 3' base is at c. ``stop_last_c`` on a structure with a CDS."""
+    d = junction_distance_at_c(tx, stop_last_c)
+    assert d is not None
+    if d <= 0:
+        return False, f"{what} lies in the last exon ({tx.exon_count}): NMD not predicted"
+    if d > nmd_nt:
+        return True, f"{what} ends {d} nt before the last exon-exon junction (> {nmd_nt}): NMD predicted"
+    return False, f"{what} ends {d} nt before the last exon-exon junction (<= {nmd_nt}): NMD not predicted"
