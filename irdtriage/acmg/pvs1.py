@@ -2,6 +2,20 @@
 
 Branches implemented (strength names as applied):
 
+* from the panel structure (exons + CDS in panels/transcripts.yaml; used when the gene has one on
+  the finding's build, the allele lies on it and the annotation's exon count and residue agree):
+  - nonsense: the stop codon's 3' base is measured to the last exon-exon junction (> 50 nt -> NMD);
+  - frameshift: the new stop from HGVS p. fsTerN when given, else the frameshift's own position
+    (inside the last 50 nt / last exon: no NMD, certain; earlier than the penultimate exon: NMD;
+    penultimate exon: escape not excluded, conservative) -- the reason says which;
+  - canonical +/-1,2 splice: the skipped exon from the site; in frame (coding nt a multiple of 3)
+    -> removed-share test; out of frame -> NMD by where the new frame starts; an untranslated
+    exon -> not met; an exon holding the start/stop codon -> Moderate (conservative);
+  - initiation codon: the allele must touch c.1-3 on the structure -> default strength;
+  - the reason names the structure ("from panel structure: exon 5 of 14, ..."), and the evidence
+    keeps protein_length (for the protein sketch), hgvs_c_from_structure and the exon hit.
+  Otherwise the branches below apply.
+
 * nonsense / frameshift
   - NMD predicted (stop not in the last exon and not in the last 50 nt of the penultimate
     exon) and the transcript is the biologically relevant one (MANE Select) -> VeryStrong;
