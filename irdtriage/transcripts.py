@@ -518,6 +518,8 @@ def junction_distance_at_c(tx: Transcript, c: int) -> Optional[int]:
 
 def nmd_at_stop(tx: Transcript, stop_last_c: int, what: str, nmd_nt: int = NMD_NT) -> tuple[bool, str]:
     """50-nt rule for a stop codon whose 3' base is at c. ``stop_last_c`` on a structure with a CDS."""
+    if tx.exon_count < 2:
+        return False, f"{what}: single-exon transcript, no exon-exon junction: NMD not predicted"
     d = junction_distance_at_c(tx, stop_last_c)
     assert d is not None
     if d <= 0:

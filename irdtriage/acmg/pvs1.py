@@ -346,7 +346,7 @@ def _structure_truncating(ann: Annotation, gene: Gene, g: dict, cfg: dict, ev: d
             nmd, why = nmd_at_stop(tx, 3 * (pos + fs - 1), f"{where}, new stop of fsTer{fs} (about residue "
                                    f"{pos + fs - 1})", nmd_nt)
         else:
-            d = junction_distance_at_c(tx, c)
+            d = junction_distance_at_c(tx, c) if tx.exon_count > 1 else 0
             assert d is not None
             if d <= nmd_nt:
                 nmd, why = False, (f"{where}, frameshift at c.{c} {'in the last exon' if d <= 0 else f'{d} nt before the last junction'}; "
