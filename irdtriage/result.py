@@ -252,11 +252,22 @@ def gene_dict(h: models.GeneHypothesis, panel: models.Panel,
 
 
 def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
-    """Protein length as the annotation gives it ("356/533" in a Protein_position or AA.pos / AA.length field)."""
+    """Protein length as the annotation gives it ("356/533" in a Protein_position or AA.pos / AA.length
+    field), else from the panel's transcript structure (panels/transcripts.yaml), with its source."""
     for f in h.findings:
         _, sep, tail = _protein_field(f.annotation.extra).rpartition("/")
         if sep and tail.strip().isdigit():
-            return {"length": int(tail.strip()), "domains": []}
+            return {"length": int(tail.strip()), "domains": [], "length_source": "annotation"}
+    from .transcripts import default_model
+
+    model = default_model()
+    coding = model.coding_for(h.symbol)
+    if coding is not None and coding.protein_length:
+        return {"length": int(coding.protein_length), "domains": [], "length_source": coding.describe()}
+    for build in ("GRCh38", "GRCh37"):
+        tx = model.get(h.symbol, build)
+        if tx is not None and tx.protein_length:
+            return {"length": int(tx.protein_length), "domains": [], "length_source": tx.describe()}
     return None
 
 
