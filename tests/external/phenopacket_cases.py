@@ -305,8 +305,14 @@ def mane_row(symbol: str) -> dict[str, str]:
     return _MANE_CACHE.get(symbol, {})
 
 
-def csq_for(v: CaseVariant) -> str:
-    cons = consequence_from_hgvs(v.hgvs_c, v.hgvs_p)
+def csq_for(v: CaseVariant, strip_evidence: bool = False) -> str:
+    """The CSQ value for one variant from its HGVS expressions.
+
+    ``strip_evidence``: annotate the allele as a missense change on the same transcript with no
+    HGVS, no positions and no amino acids, so nothing but the consequence is known (no PVS1,
+    PM1, PM4, PS1/PM5 or splice evidence; no scores): a benchmark's "evidence removed" condition.
+    """
+    cons = "missense_variant" if strip_evidence else consequence_from_hgvs(v.hgvs_c, v.hgvs_p)
     tx = v.hgvs_c.split(":", 1)[0] if ":" in v.hgvs_c else ""
     mane = mane_row(v.gene)
     strand = {"+": "1", "-": "-1"}.get(mane.get("chr_strand", ""), "")
@@ -322,19 +328,28 @@ def csq_for(v: CaseVariant) -> str:
     cds = ""
     if cm:
         cds = cm.group(1) + (f"-{cm.group(2)}" if cm.group(2) else "")
+    hgvs_c, hgvs_p = v.hgvs_c, v.hgvs_p
+    if strip_evidence:
+        hgvs_c = hgvs_p = cds = prot_pos = aa = ""
     alt = v.alt
     if len(v.ref) != len(v.alt) and v.ref[:1] == v.alt[:1]:
         alt = v.alt[1:] or "-"  # the CSQ allele string for indels with a shared padding base
     fields = [
         alt, cons, IMPACT.get(cons, "MODIFIER"), v.gene, mane.get("Ensembl_Gene", ""), "Transcript", tx,
-        "protein_coding", "", "", v.hgvs_c, v.hgvs_p, "", cds, prot_pos, aa, "", "", "", strand, "",
+        "protein_coding", "", "", hgvs_c, hgvs_p, "", cds, prot_pos, aa, "", "", "", strand, "",
         "HGNC", v.hgnc_id or mane.get("HGNC_ID", ""), tx if tx and tx == mane.get("RefSeq_nuc") else "",
     ]
     return "|".join(_enc(f) for f in fields)
 
 
-def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant] = ()) -> Path:
-    """Write the case's GRCh38 VCF (causal records + heterozygous decoys, sorted)."""
+def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant] = (),
+                   strip_causal_evidence: bool = False) -> Path:
+    """Write the case's GRCh38 VCF (causal records + heterozygous decoys, sorted).
+
+    ``strip_causal_evidence``: the case's own records are annotated by ``csq_for(v, strip_evidence=True)``
+    (missense, nothing else known); decoys keep their annotation.
+    """
+    causal = {(v.chrom, v.pos, v.ref, v.alt) for v in case.variants}
     path = Path(path)
     lines = [
         "##fileformat=VCFv4.2",
@@ -363,7 +378,7 @@ def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant
             sample = "1/1:0,31:31:99"
         else:
             sample = "0/1:16,15:31:99"
-        records.append((v.key, f"{v.chrom}\t{v.pos}\t.\t{v.ref}\t{v.alt}\t60\tPASS\tCSQ={csq_for(v)}\tGT:AD:DP:GQ\t{sample}"))
+        records.append((v.key, f"{v.chrom}\t{v.pos}\t.\t{v.ref}\t{v.alt}\t60\tPASS\tCSQ={csq_for(v, strip_causal_evidence and k in causal)}\tGT:AD:DP:GQ\t{sample}"))
     records.sort(key=lambda r: r[0])
     path.write_text("\n".join(lines + [r[1] for r in records]) + "\n", encoding="utf-8")
     return path
