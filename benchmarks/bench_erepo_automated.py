@@ -317,7 +317,10 @@ def main(argv=None) -> int:
             why["no finding from the pipeline"] += 1
             continue
         matched.append((r, f))
-    print(f"rows with a classified finding: {len(matched)}; without: {why['no finding from the pipeline']}")
+    print(f"rows with a classified finding: {len(matched)}; without: {why['no finding from the pipeline']}"
+          + (" (e.g. " + ", ".join(f"{r['variation']} {r['hgvs_grch38']}" for r in rows
+                                   if r["clingen_uuid"] not in results)[:400] + ")"
+             if why["no finding from the pipeline"] else ""))
     if not matched:
         return 0
     report(matched, "all kept rows")
@@ -334,6 +337,7 @@ def report(matched: list[tuple[dict, dict]], title: str, short: bool = False) ->
     per = {code: Counter() for code in CODES}
     strength_agree = Counter()
     pvs1 = Counter()
+    pvs1_missed = Counter()
     for r, f in matched:
         met, not_met = parse_items(r["criteria_met"]), parse_items(r["criteria_not_met"])
         calls = {c["code"]: tool_call(c) for c in f.get("criteria", [])}
@@ -346,6 +350,8 @@ def report(matched: list[tuple[dict, dict]], title: str, short: bool = False) ->
         ps = met.get("PVS1", "not met" if "PVS1" in not_met else "not listed")
         ts = calls.get("PVS1", ("absent", None))
         pvs1[(ps, ts[1] if ts[0] == "met" else ts[0])] += 1
+        if "PVS1" in met and ts[0] == "not met":
+            pvs1_missed["/".join(f.get("consequence") or ["none"])] += 1
     if not short:
         print("per criterion: panel met / not met (of rows listing the code) against the automated call")
         head = (f"{'code':5} | {'panel met':>9} {'auto met':>8} {'same str':>8} {'auto not':>8} {'n/eval':>6} | "
@@ -373,6 +379,9 @@ def report(matched: list[tuple[dict, dict]], title: str, short: bool = False) ->
             vals = [pvs1[(prow, c)] for c in cols]
             if sum(vals):
                 print(f"{prow:>12} | " + " ".join(f"{v:>13}" for v in vals))
+        if pvs1_missed:
+            print("PVS1 met by the panel, not met automated, by the consequence read from the row's HGVS: "
+                  + ", ".join(f"{k} {v}" for k, v in pvs1_missed.most_common()))
     classes = Counter((PANEL_CLASS.get(r["assertion"], r["assertion"]), f.get("classification")) for r, f in matched)
     same = sum(v for (a, b), v in classes.items() if a == b)
     print(f"\nclass: automated = panel in {same}/{n} ({100 * same / n:.0f} %); panel (rows) x automated")

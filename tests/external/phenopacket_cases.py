@@ -241,8 +241,8 @@ def consequence_from_hgvs(hgvs_c: str, hgvs_p: str) -> str:
     p = hgvs_p.split(":", 1)[-1].strip()
     pc = p.replace("(", "").replace(")", "")
     if pc and pc not in ("p.?", "p.0"):
-        if pc.startswith("p.Met1") and ("?" in pc or "fs" not in pc and pc.endswith("?")):
-            return "start_lost"
+        if re.match(r"p\.Met1(?!\d)", pc) and not pc.endswith("="):
+            return "start_lost"  # any change of the initiator methionine (p.Met1?, p.Met1Val, ...)
         if "fs" in pc:
             return "frameshift_variant"
         if pc.endswith("=") or pc == "p.=":
@@ -278,6 +278,8 @@ def consequence_from_hgvs(hgvs_c: str, hgvs_p: str) -> str:
         if -8 <= o <= 8:
             return "splice_region_variant"
         return "intron_variant"
+    if len(positions) == 1 and positions[0][0] in ("1", "2", "3"):
+        return "start_lost"  # a change inside the initiation codon, c.1 to c.3
     if body.startswith("-"):
         return "5_prime_UTR_variant"
     if body.startswith("*"):
