@@ -241,8 +241,8 @@ def consequence_from_hgvs(hgvs_c: str, hgvs_p: str) -> str:
     p = hgvs_p.split(":", 1)[-1].strip()
     pc = p.replace("(", "").replace(")", "")
     if pc and pc not in ("p.?", "p.0"):
-        if pc.startswith("p.Met1") and ("?" in pc or "fs" not in pc and pc.endswith("?")):
-            return "start_lost"
+        if re.match(r"p\.Met1(?!\d)", pc) and not pc.endswith("="):
+            return "start_lost"  # any change of the initiator methionine (p.Met1?, p.Met1Val, ...)
         if "fs" in pc:
             return "frameshift_variant"
         if pc.endswith("=") or pc == "p.=":
@@ -278,6 +278,8 @@ def consequence_from_hgvs(hgvs_c: str, hgvs_p: str) -> str:
         if -8 <= o <= 8:
             return "splice_region_variant"
         return "intron_variant"
+    if len(positions) == 1 and positions[0][0] in ("1", "2", "3"):
+        return "start_lost"  # a change inside the initiation codon, c.1 to c.3
     if body.startswith("-"):
         return "5_prime_UTR_variant"
     if body.startswith("*"):
@@ -305,8 +307,14 @@ def mane_row(symbol: str) -> dict[str, str]:
     return _MANE_CACHE.get(symbol, {})
 
 
-def csq_for(v: CaseVariant) -> str:
-    cons = consequence_from_hgvs(v.hgvs_c, v.hgvs_p)
+def csq_for(v: CaseVariant, strip_evidence: bool = False) -> str:
+    """The CSQ value for one variant from its HGVS expressions.
+
+    ``strip_evidence``: annotate the allele as a missense change on the same transcript with no
+    HGVS, no positions and no amino acids, so nothing but the consequence is known (no PVS1,
+    PM1, PM4, PS1/PM5 or splice evidence; no scores): a benchmark's "evidence removed" condition.
+    """
+    cons = "missense_variant" if strip_evidence else consequence_from_hgvs(v.hgvs_c, v.hgvs_p)
     tx = v.hgvs_c.split(":", 1)[0] if ":" in v.hgvs_c else ""
     mane = mane_row(v.gene)
     strand = {"+": "1", "-": "-1"}.get(mane.get("chr_strand", ""), "")
@@ -322,19 +330,28 @@ def csq_for(v: CaseVariant) -> str:
     cds = ""
     if cm:
         cds = cm.group(1) + (f"-{cm.group(2)}" if cm.group(2) else "")
+    hgvs_c, hgvs_p = v.hgvs_c, v.hgvs_p
+    if strip_evidence:
+        hgvs_c = hgvs_p = cds = prot_pos = aa = ""
     alt = v.alt
     if len(v.ref) != len(v.alt) and v.ref[:1] == v.alt[:1]:
         alt = v.alt[1:] or "-"  # the CSQ allele string for indels with a shared padding base
     fields = [
         alt, cons, IMPACT.get(cons, "MODIFIER"), v.gene, mane.get("Ensembl_Gene", ""), "Transcript", tx,
-        "protein_coding", "", "", v.hgvs_c, v.hgvs_p, "", cds, prot_pos, aa, "", "", "", strand, "",
+        "protein_coding", "", "", hgvs_c, hgvs_p, "", cds, prot_pos, aa, "", "", "", strand, "",
         "HGNC", v.hgnc_id or mane.get("HGNC_ID", ""), tx if tx and tx == mane.get("RefSeq_nuc") else "",
     ]
     return "|".join(_enc(f) for f in fields)
 
 
-def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant] = ()) -> Path:
-    """Write the case's GRCh38 VCF (causal records + heterozygous decoys, sorted)."""
+def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant] = (),
+                   strip_causal_evidence: bool = False) -> Path:
+    """Write the case's GRCh38 VCF (causal records + heterozygous decoys, sorted).
+
+    ``strip_causal_evidence``: the case's own records are annotated by ``csq_for(v, strip_evidence=True)``
+    (missense, nothing else known); decoys keep their annotation.
+    """
+    causal = {(v.chrom, v.pos, v.ref, v.alt) for v in case.variants}
     path = Path(path)
     lines = [
         "##fileformat=VCFv4.2",
@@ -363,7 +380,7 @@ def write_case_vcf(case: RefCase, path: Path | str, decoys: Sequence[CaseVariant
             sample = "1/1:0,31:31:99"
         else:
             sample = "0/1:16,15:31:99"
-        records.append((v.key, f"{v.chrom}\t{v.pos}\t.\t{v.ref}\t{v.alt}\t60\tPASS\tCSQ={csq_for(v)}\tGT:AD:DP:GQ\t{sample}"))
+        records.append((v.key, f"{v.chrom}\t{v.pos}\t.\t{v.ref}\t{v.alt}\t60\tPASS\tCSQ={csq_for(v, strip_causal_evidence and k in causal)}\tGT:AD:DP:GQ\t{sample}"))
     records.sort(key=lambda r: r[0])
     path.write_text("\n".join(lines + [r[1] for r in records]) + "\n", encoding="utf-8")
     return path
