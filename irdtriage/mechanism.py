@@ -34,7 +34,7 @@ modes existed (ClinGen SVI PVS1 tree, first question; Mendelian reasoning, commo
 from __future__ import annotations
 
 import re
-from typing import Any, Iterable, Optional, Sequence
+from typing import Any, Optional, Sequence
 
 from .models import AlleleRule, CriterionResult, Finding, Gene, ModeSpec
 
@@ -236,10 +236,3 @@ def pvs1_cap(gene: Gene, res: CriterionResult, cap: str = PVS1_DOMINANT_TRUNCATI
     res.evidence["capped_from"] = was
     return res
 
-
-def non_retinal_modes(gene: Gene) -> list[ModeSpec]:
-    return [s for s in modes_of(gene).values() if not s.retinal]
-
-
-def accepted(spec: ModeSpec, findings: Iterable[Finding]) -> list[Finding]:
-    return [f for f in findings if mode_accepts(spec, f)[0]]
