@@ -26,27 +26,29 @@ qualify; they are named in the notes so a reviewer can look at them. Benign and 
 benign findings never qualify, even when a caller lists those classes in ``qualifying``:
 no genotype fit (homozygous, hemizygous, biallelic, dominant) is ever built from them.
 
-Dominant mode and disease mechanism (``_dominant``)
----------------------------------------------------
-A heterozygous allele completes a dominant fit only when its predicted effect matches a
-dominant mechanism of the gene. A *null* allele (Sequence Ontology consequence in
-``NULL_CONSEQUENCES``: stop gained, frameshift, canonical splice site, start lost, exon
-loss) is predicted loss of function, which is a disease mechanism only where the gene
-lists ``LOF`` (the first question of the ClinGen SVI PVS1 decision tree, Abou Tayoun et al.,
-Hum Mutat 2018;39:1517-1524). In a gene with both dominant and recessive inheritance whose
-mechanisms include a non-LOF one (``GOF`` or ``DN``), heterozygous loss of function is the
-carrier state of the recessive disease, so the dominant disease is taken to act through the
-non-LOF mechanism and a heterozygous null allele does not complete the dominant fit (it
-stays a single heterozygous allele in the recessive mode). In a dominant-only gene with
-``LOF`` among its mechanisms (haploinsufficiency, e.g. PRPF31) a heterozygous null or other
-rare qualifying allele is a complete dominant fit. (Reasoning from Mendelian genetics:
-common practice.)
+Disease mechanism per inheritance mode (``irdtriage.mechanism``)
+---------------------------------------------------------------
+Each mode of the gene (``Gene.modes``) names the allele classes its disease arises from. An
+allele counts towards a mode's fit only when the mode accepts its class
+(:func:`irdtriage.mechanism.mode_accepts`): a heterozygous *null* allele (Sequence Ontology
+consequence in ``NULL_CONSEQUENCES``) completes a dominant fit only where the dominant mode lists
+``LOF`` (haploinsufficiency, e.g. PRPF31, PRPH2, TOPORS) or an allele rule that matches it (a
+truncation escaping nonsense-mediated decay where that is how the dominant disease arises, e.g.
+a last-exon CRX frameshift). Otherwise it is left out of the dominant mode with a plain reason and
+stays a recessive carrier allele when the gene has a recessive mode. This follows the first
+question of the ClinGen SVI PVS1 decision tree (is loss of function a disease mechanism; Abou
+Tayoun et al., Hum Mutat 2018;39:1517-1524) asked per mode. Modes whose disease is not retinal
+(``retinal: false``, e.g. ELOVL4 recessive ichthyosis syndrome, OFD1 X-linked dominant
+oral-facial-digital syndrome) make no genotype fit; a complete genotype in such a mode is named
+in the notes. Genes without curated modes use the default rule of
+:func:`irdtriage.mechanism.default_modes`, which reproduces the gene-level rule used before modes.
 """
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 from typing import Iterable, NamedTuple, Optional, Sequence
 
+from .mechanism import NULL_CONSEQUENCES, mode_accepts, modes_of
 from .models import Call, Finding, Gene, Variant
 
 # ---------------------------------------------------------------------------
@@ -64,25 +66,9 @@ PAR = {
 STRONG_CLASSES = ("Pathogenic", "Likely pathogenic")
 CANDIDATE_CLASSES = ("Uncertain significance",)
 BENIGN_CLASSES = ("Benign", "Likely benign")
-# Sequence Ontology terms of predicted null (loss-of-function) alleles (SO names as annotators write them).
-NULL_CONSEQUENCES = frozenset({
-    "stop_gained", "frameshift_variant", "splice_donor_variant", "splice_acceptor_variant", "start_lost",
-    "exon_loss_variant", "transcript_ablation",
-})
-
-
 def is_null(f: Finding) -> bool:
     """True when the finding's annotated consequence predicts a null allele (``NULL_CONSEQUENCES``)."""
     return any(c in NULL_CONSEQUENCES for c in (f.annotation.consequence or ()))
-
-
-def null_fits_dominant(gene: Gene) -> bool:
-    """Whether a heterozygous null allele can complete a dominant fit in ``gene`` (see module docstring)."""
-    if "LOF" not in gene.mechanisms:
-        return False
-    if gene.recessive and any(m in ("GOF", "DN") for m in gene.mechanisms):
-        return False
-    return True
 
 
 def bare_chrom(chrom: str) -> str:
@@ -554,8 +540,11 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
         alleles.append((f, c))
 
     x_nonpar = [f for f, _ in alleles if is_x_nonpar(f.variant, build)]
-    modes = [m for m in gene.inheritance if m in ("AR", "AD", "XLR", "XLD")]
-    if "MT" in gene.inheritance and not modes:
+    specs = modes_of(gene)
+    nuclear = [m for m in gene.inheritance if m in ("AR", "AD", "XLR", "XLD")]
+    modes = [m for m in nuclear if m not in specs or specs[m].retinal]
+    off_modes = [m for m in nuclear if m not in modes]
+    if "MT" in gene.inheritance and not nuclear:
         a = GenotypeAssessment("no qualifying finding", notes=notes + [
             "mitochondrial inheritance is not assessed (heteroplasmy is not modelled)"], excluded_ids=excluded)
         return a
@@ -583,50 +572,44 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
             notes.append(f"{f.id} is a haploid call ({_gt(c)}) where two copies are expected: a caller or "
                          f"copy-number problem to review; counted as one allele, never as homozygous")
 
-    options: list[GenotypeAssessment] = []
-    for mode in modes:
-        if mode in ("XLR", "XLD") and sex_n == "MALE":
-            if male_hemi:
-                opt = _hemizygous(male_hemi, mode, proband, mother, build, min_dp, min_gq)
-            elif male_par and mode == "XLR":
-                opt = _recessive(gene, male_par, mode, proband, mother, father, build, context, min_dp, min_gq)
-                opt.notes.insert(0, "pseudoautosomal call(s) in a male: two copies, assessed as diploid")
-            elif male_par:
-                opt = _dominant(male_par, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
-                opt.notes.insert(0, "pseudoautosomal call(s) in a male: two copies, assessed as diploid")
-            else:
-                opt = GenotypeAssessment("no qualifying finding", mode=mode)
-        elif mode in ("AR",) or (mode == "XLR" and sex_n != "MALE"):
-            opt = _recessive(gene, alleles, mode, proband, mother, father, build, context, min_dp, min_gq)
-            if mode == "XLR" and opt.fit == "single heterozygous in a recessive gene":
-                opt.manifesting_carrier_possible = True
-                who = "female" if sex_n == "FEMALE" else "person of unknown sex"
-                extra = (" (heterozygous females often show signs in this gene, from memory)"
-                         if gene.symbol in MANIFESTING_CARRIER_GENES else "")
-                opt.notes.append(f"heterozygous {who} in an X-linked recessive gene: carrier, possibly a "
-                                 f"manifesting carrier (skewed X inactivation){extra}")
-                if sex_n is None:
-                    opt.notes.append("sex unknown: if male, this chrX call would be hemizygous")
-        else:  # AD, or XLD in a female / unknown sex
-            dom = alleles
-            if not null_fits_dominant(gene):
-                dom = [(f, c) for f, c in alleles if not is_null(f)]
-            if dom:
-                opt = _dominant(dom, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
-            else:
-                opt = GenotypeAssessment("no qualifying finding", mode=mode)
-            if len(dom) < len(alleles):
-                kept = {f.id for f, _ in dom}
-                skipped = ", ".join(f.id for f, _ in alleles if f.id not in kept)
-                why = ("loss of function is not a listed mechanism of the gene" if "LOF" not in gene.mechanisms
-                       else "in this gene heterozygous loss of function is the recessive carrier state; its "
-                            "dominant disease acts through " + "/".join(m for m in gene.mechanisms if m != "LOF"))
-                notes.append(f"null allele(s) {skipped} not counted for {mode}: {why} (mechanism check, "
-                             f"ClinGen SVI PVS1 decision tree)")
-        options.append(opt)
+    def accepted(mode: str, pool: list) -> list:
+        """The alleles of ``pool`` whose class causes ``mode``'s disease; notes name the others."""
+        spec = specs.get(mode)
+        if spec is None:
+            return pool
+        keep = []
+        for f, c in pool:
+            ok, why = mode_accepts(spec, f)
+            if ok:
+                keep.append((f, c))
+            elif mode in modes:
+                carrier = (" (it stays a recessive carrier allele)" if mode in ("AD", "XLD") and
+                           any(m in ("AR", "XLR") for m in modes) else "")
+                note = f"{f.id} not counted for {mode}: {why}{carrier}"
+                if note not in notes:
+                    notes.append(note)
+        return keep
 
+    def fit_for(mode: str) -> GenotypeAssessment:
+        pool, hemi, par = accepted(mode, alleles), accepted(mode, male_hemi), accepted(mode, male_par)
+        return _fit_for_mode(gene, mode, pool, hemi, par, sex_n, proband, mother, father, build, context,
+                             min_dp, min_gq)
+
+    options: list[GenotypeAssessment] = [fit_for(mode) for mode in modes]
+    off_notes = []
+    for mode in off_modes:
+        o = fit_for(mode)
+        spec = specs[mode]
+        if o.fit not in ("no qualifying finding", "single heterozygous in a recessive gene"):
+            off_notes.append(f"the genotype would fit {mode} ({o.fit}: {', '.join(o.qualifying_ids)}), but that "
+                             f"disease ({'; '.join(spec.conditions)}) is not retinal: not counted as a retinal fit")
+        else:
+            off_notes.append(f"{mode} ({'; '.join(spec.conditions)}) is not a retinal disease and makes no "
+                             f"genotype fit here")
+    if not options:
+        return GenotypeAssessment("no qualifying finding", notes=notes + off_notes, excluded_ids=excluded)
     best = min(options, key=lambda o: (FIT_PREFERENCE[o.fit], -o.strong_alleles, -len(o.qualifying_ids)))
-    best.notes = notes + best.notes
+    best.notes = notes + best.notes + off_notes
     best.excluded_ids = excluded
     if len(modes) > 1:
         alts = ", ".join(f"{o.mode}: {o.fit}" for o in options if o is not best)
@@ -635,9 +618,46 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
         if best.mode in ("AD", "XLD") and any(m in ("AR", "XLR") for m in modes):
             best.notes.append("check that the allele is known to act dominantly: many alleles in genes with "
                               "both modes act only recessively (common practice)")
-    if x_nonpar and sex_n is None and any(m in ("XLR", "XLD") for m in modes):
+    if x_nonpar and sex_n is None and any(m in ("XLR", "XLD") for m in nuclear):
         best.notes.append("sex unknown: chrX calls interpreted as diploid")
     return best
+
+
+def _fit_for_mode(gene, mode, alleles, male_hemi, male_par, sex_n, proband, mother, father, build, context,
+                  min_dp, min_gq) -> GenotypeAssessment:
+    """The genotype fit of one inheritance mode from the alleles that mode accepts."""
+    if not (alleles or male_hemi or male_par):
+        return GenotypeAssessment("no qualifying finding", mode=mode)
+    if mode in ("XLR", "XLD") and sex_n == "MALE":
+        if male_hemi:
+            opt = _hemizygous(male_hemi, mode, proband, mother, build, min_dp, min_gq)
+        elif male_par and mode == "XLR":
+            opt = _recessive(gene, male_par, mode, proband, mother, father, build, context, min_dp, min_gq)
+            opt.notes.insert(0, "pseudoautosomal call(s) in a male: two copies, assessed as diploid")
+        elif male_par:
+            opt = _dominant(male_par, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
+            opt.notes.insert(0, "pseudoautosomal call(s) in a male: two copies, assessed as diploid")
+        else:
+            opt = GenotypeAssessment("no qualifying finding", mode=mode)
+    elif mode in ("AR",) or (mode == "XLR" and sex_n != "MALE"):
+        if not alleles:
+            return GenotypeAssessment("no qualifying finding", mode=mode)
+        opt = _recessive(gene, alleles, mode, proband, mother, father, build, context, min_dp, min_gq)
+        if mode == "XLR" and opt.fit == "single heterozygous in a recessive gene":
+            opt.manifesting_carrier_possible = True
+            who = "female" if sex_n == "FEMALE" else "person of unknown sex"
+            extra = (" (heterozygous females often show signs in this gene, from memory)"
+                     if gene.symbol in MANIFESTING_CARRIER_GENES else "")
+            opt.notes.append(f"heterozygous {who} in an X-linked recessive gene: carrier, possibly a "
+                             f"manifesting carrier (skewed X inactivation){extra}")
+            if sex_n is None:
+                opt.notes.append("sex unknown: if male, this chrX call would be hemizygous")
+    else:  # AD, or XLD in a female / unknown sex
+        if alleles:
+            opt = _dominant(alleles, mode, proband, mother, father, sex_n, build, min_dp, min_gq)
+        else:
+            opt = GenotypeAssessment("no qualifying finding", mode=mode)
+    return opt
 
 
 def _strength(fs: Iterable[Finding]) -> tuple[int, int]:

@@ -79,6 +79,28 @@ class Span:
 
 
 @dataclass(frozen=True)
+class AlleleRule:
+    """One allele class a mode's disease arises from (``irdtriage.mechanism.ALLELE_CLASSES``),
+    optionally only in the listed exon or intron numbers of the annotated transcript."""
+
+    cls: str
+    exons: tuple[int, ...] = ()
+    introns: tuple[int, ...] = ()
+
+
+@dataclass(frozen=True)
+class ModeSpec:
+    """Disease mechanism of one inheritance mode of a gene (see irdtriage.mechanism)."""
+
+    mode: str  # "AR", "AD", "XLR", "XLD", "MT"
+    mechanisms: tuple[str, ...]  # subset of ("LOF", "GOF", "DN"); empty = not established
+    alleles: tuple[AlleleRule, ...]
+    conditions: tuple[str, ...]
+    retinal: bool = True  # False: the mode's disease is not retinal/visual and makes no retinal fit
+    source: str = ""
+
+
+@dataclass(frozen=True)
 class Gene:
     symbol: str
     hgnc_id: str  # "HGNC:10294"
@@ -99,6 +121,8 @@ class Gene:
     evidence_level: str = ""  # "established" | "moderate" | "limited" | "disputed"; "" = not graded
     evidence_source: tuple[str, ...] = ()  # disease ids / papers behind the evidence level
     evidence_date: str = ""  # "YYYY-MM-DD" of the evidence call
+    modes: tuple[ModeSpec, ...] = ()  # per-mode mechanism; () = derived by irdtriage.mechanism.default_modes
+    plus_clinical: tuple[tuple[str, str], ...] = ()  # MANE Plus Clinical (RefSeq, Ensembl), versioned
 
     def span(self, build: str) -> Optional[Span]:
         return self.grch38 if build == "GRCh38" else self.grch37

