@@ -109,7 +109,9 @@ class HttpClient:
             raise InputError(f"cannot create the cache folder: {e.strerror}", folder) from None
         self._session = requests_cache.CachedSession(
             self.cache_path, backend="sqlite", expire_after=_dt.timedelta(days=self.expire_days),
-            allowable_methods=("GET",), allowable_codes=(200,), stale_if_error=False)
+            allowable_methods=("GET",), allowable_codes=(200,),
+            # replay answers with whatever the cache holds, expired or not
+            stale_if_error=self.offline_replay)
         if self.offline_replay:
             import requests.adapters
 
@@ -145,8 +147,7 @@ class HttpClient:
             try:
                 if self.offline_replay:
                     # replay: whatever the cache holds, expired or not; never the network
-                    resp = self._session.get(url, params=params, headers=headers, only_if_cached=True,
-                                             expire_after=-1)
+                    resp = self._session.get(url, params=params, headers=headers, only_if_cached=True)
                 else:
                     if not self._cached(url, params, headers):
                         self._wait_turn()
@@ -166,7 +167,7 @@ class HttpClient:
                            "the run continues without that evidence")
                 return Answer(problem=type(e).__name__)
             from_cache = bool(getattr(resp, "from_cache", False))
-            if self.offline_replay and (resp.status_code == 504 and not from_cache):
+            if self.offline_replay and resp.status_code != 200:  # requests-cache's 504: not cached
                 self.counts["not_in_cache"] += 1
                 return Answer(problem="not in the cache (offline replay)")
             if not from_cache:
@@ -301,7 +302,7 @@ class EnsemblVepRest:
                 self._release = "unknown"
         region, allele = region_and_allele(chrom, pos, ref, alt)
         self.variants_asked += 1
-        ans = self.client.get_json(f"vep/human/region/{quote(region)}/{quote(allele)}",
+        ans = self.client.get_json(f"vep/human/region/{quote(region, safe=':-')}/{quote(allele, safe='-')}",
                                    {"af_gnomade": 1, "af_gnomadg": 1, "content-type": "application/json"})
         rec = None
         if isinstance(ans.data, list) and ans.data and isinstance(ans.data[0], dict):
