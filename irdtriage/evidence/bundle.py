@@ -449,7 +449,8 @@ def _write_scores(spec: str, regions: Regions, folder: Path) -> dict[str, Any]:
     counts = {"read": 0}
     rows: dict[str, list[tuple[int, str]]] = {}
     header_lines: list[str] = []
-    opener = gzip.open if open(path, "rb").read(2) == b"\x1f\x8b" else open
+    with open(path, "rb") as probe:
+        opener = gzip.open if probe.read(2) == b"\x1f\x8b" else open
     with opener(path, "rt", encoding="utf-8", errors="replace") as fh:
         for line in fh:
             if not line.startswith("#"):
