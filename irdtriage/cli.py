@@ -144,12 +144,46 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--scores", metavar="FILE", action="append", default=[],
                    help="tabix-indexed score table with columns chrom, pos, ref, alt, score; the score is "
                         "named by the file (revel.tsv.gz) or as NAME=PATH (repeatable)")
+    t.add_argument("--resources", metavar="DIR",
+                   help="evidence bundle folder made by 'irdtriage resources build' (population frequencies, "
+                        "clinical assertions, score tables)")
+    t.add_argument("--online", action="store_true",
+                   help="ask a public service (Ensembl REST) for population frequencies and clinical assertions "
+                        "the local evidence lacks; sends variant coordinates only, never sample names or genotypes")
+    t.add_argument("--cache", metavar="FILE", dest="online_cache",
+                   help="cache file for online answers (SQLite; default: a per-user cache folder)")
+    t.add_argument("--cache-days", metavar="DAYS", type=float, default=None,
+                   help="online answers older than this are fetched again (default 30)")
+    t.add_argument("--offline-replay", action="store_true",
+                   help="use online answers from the --cache only; nothing goes over the network")
+    t.add_argument("--online-url", metavar="URL", help="server of the online source (default: Ensembl REST for "
+                                                       "the genome build; a mirror may be named here)")
     t.add_argument("--min-dp", type=_non_negative_int, default=None, help="minimum read depth (default 8)")
     t.add_argument("--min-gq", type=_non_negative_int, default=None, help="minimum genotype quality (default 20)")
     t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
     t.add_argument("--all-variants", action="store_true",
                    help="also report common alleles (BA1) and intronic/flanking alleles without splice evidence")
     add_output_opts(t, "irdtriage-results")
+
+    rs = sub.add_parser("resources", help="build or show a local evidence bundle",
+                        description="Build a panel-sized, versioned evidence bundle from public files you already "
+                                    "have, or show what a bundle holds (docs/evidence-bundle.md).")
+    rs_sub = rs.add_subparsers(dest="resources_command", metavar="ACTION")
+    rb = rs_sub.add_parser("build", help="extract the panel genes' regions from large evidence files")
+    rb.add_argument("--population", metavar="FILE", action="append", default=[],
+                    help="population-frequency sites VCF in gnomAD's layout (repeat for per-chromosome files)")
+    rb.add_argument("--clinical", metavar="FILE", action="append", default=[],
+                    help="clinical-assertion VCF with CLNSIG (ClinVar's VCF)")
+    rb.add_argument("--scores", metavar="FILE", action="append", default=[],
+                    help="score table: chrom, pos, ref, alt, score (tab-separated, plain, gzip or bgzip); named by "
+                         "the file (revel.tsv.gz) or NAME=PATH (repeatable)")
+    rb.add_argument("--out", metavar="DIR", required=True, help="bundle folder to write")
+    rb.add_argument("--build", choices=("GRCh37", "GRCh38"), help="genome build (default: from the VCF headers)")
+    rb.add_argument("--padding", type=_non_negative_int, default=None,
+                    help="bases kept on each side of a gene span (default 1000)")
+    add_panel_opts(rb)
+    rsh = rs_sub.add_parser("show", help="what a bundle holds: sources, versions, dates, record counts")
+    rsh.add_argument("folder", metavar="DIR")
 
     d = sub.add_parser("demo", help="run the bundled invented demo family (offline)")
     add_output_opts(d, "irdtriage-demo")
@@ -214,6 +248,8 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
             return cmd_report(args)
         if args.command == "classify":
             return cmd_classify(args)
+        if args.command == "resources":
+            return cmd_resources(args, argv, parser)
     except InputError as e:
         print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
         return 2
@@ -329,12 +365,23 @@ def cmd_triage(args, argv) -> int:
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
         curated_path=args.curated, popfreq_vcf=args.population_vcf, clinical_vcf=args.clinical_vcf,
         score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
+        resources=args.resources, online=args.online, online_cache=args.online_cache,
+        offline_replay=args.offline_replay, online_url=args.online_url, online_expire_days=args.cache_days,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
     )
     inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
               ("rules", args.rules), ("curated evidence", args.curated),
               ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf)]
     inputs += [("score table", p.split("=", 1)[-1]) for p in args.scores]
+    if args.resources and not os.path.isdir(args.resources):
+        raise InputError("evidence bundle folder not found", args.resources)
+    if args.cache_days is not None and args.cache_days <= 0:
+        raise InputError(f"--cache-days must be more than 0, got {args.cache_days:g}")
+    if (args.online_cache or args.online_url or args.cache_days is not None) and not (args.online or args.offline_replay):
+        raise InputError("--cache, --cache-days and --online-url apply to online evidence: add --online "
+                         "(or --offline-replay)")
+    if args.online and args.offline_replay:
+        raise InputError("--online and --offline-replay exclude each other (replay never uses the network)")
     for label, path in inputs:
         if path and not os.path.exists(path):
             raise InputError(f"{label} file not found", path)
@@ -342,8 +389,53 @@ def cmd_triage(args, argv) -> int:
         inputs.append(("HPO list", args.hpo[1:]))
     if args.genes and args.genes.startswith("@"):
         inputs.append(("gene list", args.genes[1:]))
+    inputs += [("evidence bundle", args.resources), ("online cache", args.online_cache)]
     _run_and_write(args.vcf, kwargs, args, args.phenopacket, [p for _, p in inputs])
     return 0
+
+
+def cmd_resources(args, argv, parser) -> int:
+    """``resources build`` writes a bundle folder (one transaction); ``resources show`` prints its manifest."""
+    from .evidence import bundle as bundle_mod
+
+    if not args.resources_command:
+        parser.parse_args(["resources", "--help"])
+        return 2
+    console = _console()
+    if args.resources_command == "build":
+        manifest = bundle_mod.build_bundle(
+            args.out, population=args.population, clinical=args.clinical, scores=args.scores,
+            panel_path=args.panel, genes=parse_gene_option(args.genes) if args.genes else None, build=args.build,
+            padding=bundle_mod.DEFAULT_PADDING if args.padding is None else args.padding,
+            command="irdtriage " + " ".join(shlex.quote(a) for a in argv))
+        folder = args.out
+    else:
+        folder = args.folder
+        manifest = bundle_mod.Bundle.open(folder).manifest
+    _render_manifest(console, folder, manifest)
+    return 0
+
+
+def _render_manifest(console, folder: str, m: dict) -> None:
+    """One line per bundled file and per source it came from (long lines are not wrapped, so
+    file names and versions stay whole when the output is piped or searched)."""
+    reg = m["regions"]
+    panel = m.get("panel") or {}
+    say = lambda text: console.print(text, soft_wrap=True, markup=False)  # noqa: E731
+    say(f"evidence bundle {folder}: {m['genome_build']}, panel {panel.get('name')} {panel.get('version')} "
+        f"({panel.get('genes')} genes), {reg.get('count')} regions, {reg.get('bases'):,} bases "
+        f"(gene spans +/- {reg.get('padding')} bp), built {m.get('created')}")
+    for c in m["contents"]:
+        say(f"{c['kind']}{' ' + c['name'] if c.get('name') else ''}: {c['file']}, {c.get('records', 0):,} records, "
+            f"sha256 {(c.get('sha256') or '')[:12]}")
+        for s in c.get("sources", []):
+            version = s.get("version") or "not stated"
+            if s.get("version_from"):
+                version += f" (from the {s['version_from']})"
+            date = (s.get("date") or "unknown") + (f" (from the {s['date_from']})" if s.get("date_from") else "")
+            say(f"  from {s.get('name')}: version {version}; date {date}; {s.get('records_written', 0):,} of "
+                f"{s.get('records_read', 0):,} records read kept; sha256 {(s.get('sha256') or '')[:12]}")
+    say(CAUTION)
 
 
 def cmd_demo(args, argv) -> int:

@@ -44,6 +44,12 @@ class TriageOptions:
     popfreq_vcf: Optional[str] = None
     clinical_vcf: Optional[str] = None
     score_tables: Sequence[str] = ()
+    resources: Optional[str] = None  # evidence bundle folder (irdtriage.evidence.bundle)
+    online: bool = False  # ask a public service for what local evidence lacks (coordinates only)
+    online_cache: Optional[str] = None  # requests-cache SQLite file (default: per-user cache folder)
+    offline_replay: bool = False  # online answers from the cache only, never the network
+    online_url: Optional[str] = None  # server of the online provider (default: Ensembl REST for the build)
+    online_expire_days: Optional[float] = None
     padding: int = 50
     quality: Any = None  # irdtriage.vcf.QualityThresholds
     command: str = ""
@@ -76,7 +82,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .acmg.rules import load_rules
     from .acmg.rulesets import load_combining
     from .consequence.annotations import pick_annotation
-    from .evidence import EvidenceConfig, EvidenceSources, collect_evidence
+    from .evidence import EvidenceConfig, collect_evidence
     from .panel import GeneLocator, load_panel
     from .vcf import QualityThresholds, quality_flags, read_vcf, structural_warnings
 
@@ -191,13 +197,20 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
 
     # 6. evidence -------------------------------------------------------------------
     ev_config = EvidenceConfig().with_layouts(layouts)
-    sources = EvidenceSources.open(popfreq_vcf=opts.popfreq_vcf, clinical_vcf=opts.clinical_vcf,
-                                   score_tables=list(opts.score_tables or ()), build=intake.build)
+    from .evidence import assemble
+
+    sources = assemble.open_sources(
+        build=intake.build, popfreq_vcf=opts.popfreq_vcf, clinical_vcf=opts.clinical_vcf,
+        score_tables=list(opts.score_tables or ()), resources=opts.resources, online=opts.online,
+        online_cache=opts.online_cache, offline_replay=opts.offline_replay, online_url=opts.online_url,
+        online_expire_days=opts.online_expire_days)
     try:
         for f in findings:
             f.evidence = collect_evidence(f.variant, f.annotation, ev_config, sources)
+        evidence_sources, evidence_notes = assemble.finish(sources)
     finally:
         sources.close()
+    warnings.extend(evidence_notes)
 
     curated: dict[str, list[models.CriterionResult]] = {}
     if opts.curated_path:
@@ -348,6 +361,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         phenotype_ranks=phenotype_ranks(matches),
     )
     res["phenotype"]["term_changes"] = term_changes
+    res["evidence_sources"] = evidence_sources
     # what the input could not support, first in the result so every output shows it first
     return {"schema_version": res.pop("schema_version"), "input_limits": limits, **res}
 

@@ -90,6 +90,9 @@ def _source_text(pop: dict) -> str:
     """Where the frequency came from, in plain words, for the BA1 reason."""
     if pop.get("source") == "population_vcf":
         return "population-frequency VCF"
+    if pop.get("source") == "online":
+        return (f"{pop.get('dataset') or 'population data'} via {pop.get('provider') or 'an online source'}"
+                + (f", fetched {pop['fetched']}" if pop.get("fetched") else ""))
     keys = pop.get("keys") or []
     if pop.get("source") == "info" and keys:
         return ", ".join(field_label(k, "INFO/annotation") for k in keys)

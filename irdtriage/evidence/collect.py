@@ -14,6 +14,11 @@
 * ``clinical``: {same_variant, nearby} from a clinical-assertion VCF, or None without one;
 * ``scores``: {table name: value or None} from score tables;
 * ``build``: the genome build given to ``EvidenceSources.open`` (used by PVS1's transcript model).
+
+With an online provider (``EvidenceSources.online``, see online.py), a finding whose local
+sources give no population record is looked up online; a clinical significance missing from
+the local inputs is filled in as ``clinsig`` with ``clinsig_source`` naming the provider (it
+never becomes a criterion by itself).
 """
 from __future__ import annotations
 
@@ -37,6 +42,8 @@ class EvidenceSources:
     tables: list[ScoreTable] = field(default_factory=list)
     config: EvidenceConfig = field(default_factory=EvidenceConfig)
     build: Optional[str] = None  # genome build of the patient VCF, passed on as evidence["build"]
+    online: Any = None  # an online.OnlineProvider (asked only for what local sources lack)
+    provenance: Optional[dict] = None  # filled by assemble.open_sources for result.json
 
     @classmethod
     def open(cls, popfreq_vcf: Optional[str] = None, clinical_vcf: Optional[str] = None,
@@ -57,7 +64,7 @@ class EvidenceSources:
         return src
 
     def close(self) -> None:
-        for s in [self.population, self.clinical, *self.tables]:
+        for s in [self.population, self.clinical, *self.tables, self.online]:
             if s is not None:
                 s.close()
 
@@ -160,4 +167,13 @@ def collect_evidence(variant: Variant, annotation: Optional[Annotation], config:
                     for t in (sources.tables if sources else [])}
     if ev["revel"] is None and ev["scores"].get("revel") is not None:
         ev["revel"], ev["revel_key"] = ev["scores"]["revel"], "score table revel"
+    online = sources.online if sources is not None else None
+    if online is not None:
+        if ev["population"] is None:
+            ev["population"] = online.population(variant.chrom, variant.pos, variant.ref, variant.alt)
+        if ev["clinsig"] is None:
+            oc = online.clinical(variant.chrom, variant.pos, variant.ref, variant.alt)
+            if oc is not None:
+                ev["clinsig"], ev["clinsig_source"] = oc["clnsig"], f"online: {oc['provider']}"
+                ev["online_clinical"] = oc
     return ev
