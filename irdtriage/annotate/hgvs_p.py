@@ -96,7 +96,7 @@ def protein_change(tx_seq: str, cds_start: int, cds_end: int, a: int, b: int, al
     if i < len(ref_prot) and ref_prot[i] == "*":
         return _extension(ref_prot, alt_prot, i, length, "stop_lost", new_stop_last)
     ref_stop = len(ref_prot) - 1
-    if alt_stop >= 0 and alt_stop < ref_stop:  # a stop earlier than the reference's
+    if alt_stop >= 0 and alt_stop < ref_stop + delta // 3:  # a stop before the reference's (length change counted)
         if alt_prot[i] == "*":
             return ProteinChange(f"p.({three(ref_prot[i])}{i + 1}Ter)", "stop_gained", i + 1, length, new_stop_last)
         last = max(i, (b - cds_start) // 3)
