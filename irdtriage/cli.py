@@ -149,6 +149,10 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
     t.add_argument("--all-variants", action="store_true",
                    help="also report common alleles (BA1) and intronic/flanking alleles without splice evidence")
+    t.add_argument("--reference", metavar="FASTA",
+                   help="reference FASTA for built-in annotation of records without CSQ/ANN (needs --transcripts)")
+    t.add_argument("--transcripts", metavar="FILE",
+                   help="GFF3/GTF transcript models for built-in annotation of records without CSQ/ANN")
     add_output_opts(t, "irdtriage-results")
 
     d = sub.add_parser("demo", help="run the bundled invented demo family (offline)")
@@ -178,6 +182,18 @@ def build_parser() -> argparse.ArgumentParser:
                    help=f"formats to write from {','.join(FORMATS)} (default: all)")
     r.add_argument("--out", metavar="DIR", help="output folder (default: beside the result)")
     r.add_argument("--phenopacket", metavar="FILE", help="input phenopacket to extend with interpretations")
+
+    an = sub.add_parser("annotate", help="add consequence and HGVS (CSQ INFO field) from a reference FASTA and "
+                                         "GFF3/GTF transcripts", epilog=CAUTION)
+    an.add_argument("vcf", help="VCF/BCF without CSQ/ANN annotation")
+    an.add_argument("--reference", metavar="FASTA",
+                    help="reference FASTA of the VCF's build (plain or bgzipped; without it amino-acid "
+                         "changes and indel HGVS are left unknown)")
+    an.add_argument("--transcripts", metavar="FILE", required=True, help="transcript models: GFF3 or GTF")
+    an.add_argument("--placement", metavar="SEQID=CHROM:ANCHOR:STRAND", action="append", default=[],
+                    help="place a gene-orientation record's coordinates on the genome (e.g. "
+                         "NG_009497.1=1:216428397:-); repeatable")
+    an.add_argument("--out", metavar="FILE", required=True, help="annotated VCF (.vcf, .vcf.gz or .bcf)")
 
     c = sub.add_parser("classify", help="class, rule, points and posterior for criteria as curators write them",
                        description="Combine ACMG/AMP criteria (e.g. \"PVS1, PM2_Supporting, PM3_Strong\") into a "
@@ -214,6 +230,8 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
             return cmd_report(args)
         if args.command == "classify":
             return cmd_classify(args)
+        if args.command == "annotate":
+            return cmd_annotate(args, argv)
     except InputError as e:
         print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
         return 2
@@ -330,10 +348,14 @@ def cmd_triage(args, argv) -> int:
         curated_path=args.curated, popfreq_vcf=args.population_vcf, clinical_vcf=args.clinical_vcf,
         score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
+        reference=args.reference, transcripts_path=args.transcripts,
     )
+    if args.reference and not args.transcripts:
+        raise InputError("--reference needs --transcripts (the transcript models to annotate with)", args.reference)
     inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
               ("rules", args.rules), ("curated evidence", args.curated),
-              ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf)]
+              ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf),
+              ("reference FASTA", args.reference), ("transcript", args.transcripts)]
     inputs += [("score table", p.split("=", 1)[-1]) for p in args.scores]
     for label, path in inputs:
         if path and not os.path.exists(path):
@@ -343,6 +365,31 @@ def cmd_triage(args, argv) -> int:
     if args.genes and args.genes.startswith("@"):
         inputs.append(("gene list", args.genes[1:]))
     _run_and_write(args.vcf, kwargs, args, args.phenopacket, [p for _, p in inputs])
+    return 0
+
+
+def cmd_annotate(args, argv) -> int:
+    from .annotate.annotate import Annotator
+    from .annotate.providers import parse_placement
+    from .annotate.vcf_writer import annotate_vcf
+
+    for label, path in (("VCF", args.vcf), ("reference FASTA", args.reference), ("transcript", args.transcripts)):
+        if path and not os.path.exists(path):
+            raise InputError(f"{label} file not found", path)
+    if os.path.abspath(args.out) in {os.path.abspath(p) for p in (args.vcf, args.reference, args.transcripts) if p}:
+        raise InputError("the output would overwrite an input", args.out)
+    placements = dict(parse_placement(p) for p in args.placement)
+    annotator = Annotator(args.transcripts, args.reference, placements)
+    try:
+        counts = annotate_vcf(args.vcf, args.out, annotator,
+                              command="irdtriage " + " ".join(shlex.quote(a) for a in argv))
+    finally:
+        annotator.close()
+    print(f"{args.out}: {counts['records']} records, {counts['annotated_alleles']} of {counts['alleles']} alleles "
+          f"on a transcript ({counts['entries']} transcript entries)")
+    if not args.reference:
+        print("no --reference: amino-acid changes and indel HGVS c. are left unknown")
+    print(CAUTION)
     return 0
 
 

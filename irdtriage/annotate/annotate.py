@@ -62,13 +62,17 @@ class TxCache:
             m = self._maps[tx.transcript_id] = TxMap(tx)
         return m
 
+    def covers(self, chrom: str) -> bool:
+        return self.seq is not None and self.seq.has(chrom)
+
     def tx_seq(self, m: TxMap) -> Optional[str]:
-        if self.seq is None:
+        """The spliced transcript sequence, or None when the provider lacks part of it."""
+        if not self.covers(m.tx.chrom):
             return None
-        s = self._tx_seq.get(m.tx.transcript_id)
-        if s is None:
-            s = self._tx_seq[m.tx.transcript_id] = m.transcript_sequence(self.seq)
-        return s
+        if m.tx.transcript_id not in self._tx_seq:
+            s = m.transcript_sequence(self.seq)
+            self._tx_seq[m.tx.transcript_id] = s if len(s) == m.length else None
+        return self._tx_seq[m.tx.transcript_id]
 
 
 def _frac(nums: list[int], total: int) -> str:
@@ -96,7 +100,7 @@ def annotate_allele(chrom: str, pos: int, ref: str, alt: str, transcripts: Trans
 
 def annotate_on(tx: TxModel, pos: int, ref: str, alt: str, cache: TxCache) -> Optional[TxConsequence]:
     m = cache.map(tx)
-    seq = cache.seq
+    seq = cache.seq if cache.covers(tx.chrom) else None
     d = describe(m, pos, ref, alt, seq)
     edit = d.edit if d is not None else trim(pos, ref, alt)
     pl = place(m, edit)
@@ -113,7 +117,7 @@ def annotate_on(tx: TxModel, pos: int, ref: str, alt: str, cache: TxCache) -> Op
         res.notes.append("no reference sequence: HGVS c. of an insertion/deletion needs it (3' rule)")
     if m.cds_start is not None and pl.cds_touched:
         delta = len(edit.alt) - len(edit.ref)
-        tx_seq = cache.tx_seq(m)
+        tx_seq = cache.tx_seq(m) if seq is not None else None
         if not pl.exonic_only:
             terms.append("coding_sequence_variant")
             res.hgvs_p = "p.?"
@@ -168,10 +172,12 @@ def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
         extra["Stop_to_last_junction_nt"] = str(c.nmd_distance)
     if c.notes:
         extra["Annotation_notes"] = "; ".join(c.notes)
-    mane = {versionless(x) for x in mane_ids}
+    # MANE Select only for the same accession.version (another version may encode another protein)
+    mane = {x for x in mane_ids}
+    is_mane = c.transcript in mane if "." in c.transcript else versionless(c.transcript) in {versionless(x) for x in mane}
     return Annotation(gene=c.gene, transcript=c.transcript, consequence=c.terms, hgvs_c=c.hgvs_c,
                       hgvs_p=c.hgvs_p, exon=c.exon, intron=c.intron, source=SOURCE,
-                      is_mane=versionless(c.transcript) in mane, extra=extra)
+                      is_mane=is_mane, extra=extra)
 
 
 def pick(anns: list[Annotation], candidate_genes: list[str]) -> Optional[Annotation]:
@@ -190,3 +196,45 @@ def pick(anns: list[Annotation], candidate_genes: list[str]) -> Optional[Annotat
         chosen = min(mine or anns, key=rank)
     chosen.extra.setdefault("entries_for_allele", str(len(anns)))
     return chosen
+
+
+class Annotator:
+    """Built-in annotation for the pipeline: a transcript file (and optionally a reference FASTA)
+    the user names, opened once."""
+
+    def __init__(self, transcripts_path: str, reference_path: Optional[str] = None,
+                 placements: Optional[dict] = None):
+        from .providers import FastaSequence, read_gff
+
+        self.transcripts = read_gff(transcripts_path, placements)
+        if not len(self.transcripts):
+            from ..errors import InputError
+
+            raise InputError("no transcript with exons found", transcripts_path)
+        self.reference = FastaSequence(reference_path) if reference_path else None
+        self.cache = TxCache(self.reference)
+        self.transcripts_path, self.reference_path = transcripts_path, reference_path
+
+    def consequences(self, chrom: str, pos: int, ref: str, alt: str) -> list[TxConsequence]:
+        return annotate_allele(chrom, pos, ref, alt, self.transcripts, self.cache)
+
+    def check_ref(self, chrom: str, pos: int, ref: str) -> Optional[str]:
+        """The reference FASTA's bases where they differ from a VCF REF (None when they agree or
+        cannot be checked)."""
+        if self.reference is None or not self.reference.has(chrom) or set(ref) - set("ACGT"):
+            return None
+        got = self.reference.fetch(chrom, pos, pos + len(ref) - 1)
+        return None if got == ref.upper() else got
+
+    def annotation_for(self, chrom: str, pos: int, ref: str, alt: str, candidate_genes: list[str],
+                       mane_ids: Iterable[str]) -> Optional[Annotation]:
+        anns = [to_annotation(c, mane_ids) for c in self.consequences(chrom, pos, ref, alt)]
+        return pick(anns, candidate_genes)
+
+    def describe(self) -> str:
+        ref = self.reference_path or "no reference FASTA (amino-acid changes unknown)"
+        return f"built-in annotation from {self.transcripts_path} ({len(self.transcripts)} transcripts) and {ref}"
+
+    def close(self) -> None:
+        if self.reference is not None:
+            self.reference.close()

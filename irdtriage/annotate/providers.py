@@ -44,11 +44,20 @@ def bare_chrom(name: str) -> str:
 
 
 class SequenceProvider(Protocol):
+    def has(self, chrom: str) -> bool: ...
+
     def fetch(self, chrom: str, start: int, end: int) -> str: ...
 
 
+_REGION_NAME = re.compile(r"^(.+):(\d+)-(\d+)$")
+
+
 class FastaSequence:
-    """A FASTA the user names, read with ``pysam.FastaFile`` (an index is made when missing)."""
+    """A FASTA the user names, read with ``pysam.FastaFile`` (an index is made when missing).
+
+    A record named ``CHROM:START-END`` (as ``samtools faidx ref.fa chr1:1000-2000`` or
+    ``pysam.faidx`` write it) is taken as that region of CHROM, so a FASTA of the regions of
+    interest serves as well as a whole genome."""
 
     def __init__(self, path: str):
         import pysam
@@ -59,25 +68,33 @@ class FastaSequence:
         except (OSError, ValueError) as e:
             raise InputError(f"cannot read the reference FASTA ({e}); it must be plain or bgzipped "
                              "and its folder writable for the index", self.path) from None
-        self._names = {bare_chrom(n): n for n in self._fa.references}
         self._lengths = dict(zip(self._fa.references, self._fa.lengths))
+        # bare chrom -> [(first position, record name, length)]
+        self._parts: dict[str, list[tuple[int, str, int]]] = {}
+        for name, length in self._lengths.items():
+            m = _REGION_NAME.match(name)
+            if m and int(m.group(3)) - int(m.group(2)) + 1 == length:
+                self._parts.setdefault(bare_chrom(m.group(1)), []).append((int(m.group(2)), name, length))
+            else:
+                self._parts.setdefault(bare_chrom(name), []).append((1, name, length))
 
     def has(self, chrom: str) -> bool:
-        return bare_chrom(chrom) in self._names
-
-    def length(self, chrom: str) -> Optional[int]:
-        name = self._names.get(bare_chrom(chrom))
-        return self._lengths.get(name) if name else None
+        return bare_chrom(chrom) in self._parts
 
     def fetch(self, chrom: str, start: int, end: int) -> str:
-        name = self._names.get(bare_chrom(chrom))
-        if name is None or end < start:
+        parts = self._parts.get(bare_chrom(chrom))
+        if not parts or end < start:
             return ""
-        start = max(start, 1)
-        end = min(end, self._lengths[name])
-        if end < start:
-            return ""
-        return self._fa.fetch(name, start - 1, end).upper()
+        for first, name, length in parts:
+            if first <= start and end <= first + length - 1:
+                return self._fa.fetch(name, start - first, end - first + 1).upper()
+        # partly outside every record: the covered bases only when they are contiguous from start
+        for first, name, length in parts:
+            if first <= start <= first + length - 1:
+                return self._fa.fetch(name, start - first, length).upper()
+        if start < 1:
+            return self.fetch(chrom, 1, end)
+        return ""
 
     def close(self) -> None:
         self._fa.close()
@@ -90,6 +107,9 @@ class RegionSequence:
     chrom: str
     start: int
     seq: str
+
+    def has(self, chrom: str) -> bool:
+        return bare_chrom(chrom) == bare_chrom(self.chrom)
 
     def fetch(self, chrom: str, start: int, end: int) -> str:
         if bare_chrom(chrom) != bare_chrom(self.chrom):
