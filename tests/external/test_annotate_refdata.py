@@ -263,3 +263,60 @@ def test_published_variants(rs1, ush2a, gene, c, ref, alt, p, c_text):
     assert (got[0].hgvs_c, got[0].hgvs_p) == (c_text, p)
     if gene == "USH2A" and "Ter" in p:
         assert got[0].nmd is True  # exons 13, 20 and 61 of 72: far upstream of the last junction
+
+
+# --- the whole pipeline: triage --reference --transcripts on a VCF without CSQ/ANN --------------
+def test_triage_uses_builtin_annotation(ush2a, tmp_path):
+    """``irdtriage triage`` (real subprocess) with the USH2A record as a region FASTA
+    (``chr1:START-END``, GRCh38 = 216,428,397 - NG position) and NM_206933.2 as a GFF3 on chr1:
+    the unannotated VCF's USH2A alleles get the published c./p. (see the module doc)."""
+    import os
+    import subprocess
+    import sys
+
+    import pysam
+
+    region, txs, ng_seq = ush2a
+    start = NG_ANCHOR - len(ng_seq)
+    fa = tmp_path / "ush2a_region.fa"
+    fa.write_text(f">chr1:{start}-{NG_ANCHOR - 1}\n" + "\n".join(
+        region.seq[i:i + 80] for i in range(0, len(region.seq), 80)) + "\n")
+    pysam.faidx(str(fa))
+    gff = tmp_path / "ush2a.gff3"
+    rows = ["##gff-version 3"]
+    for line in NG_GFF.read_text().splitlines():
+        f = line.split("\t")
+        if len(f) == 9 and (("ID=rna-NM_206933.2;" in f[8] and f[2] == "mRNA") or "Parent=rna-NM_206933.2" in f[8]):
+            a, b = NG_ANCHOR - int(f[4]), NG_ANCHOR - int(f[3])
+            rows.append("\t".join(["chr1", f[1], f[2], str(a), str(b), f[5], "-", f[7], f[8]]))
+    gff.write_text("\n".join(rows) + "\n")
+    m = TxMap(txs.get("NM_206933.2"))
+    stop_g = m.c_to_g("11864")  # c.11864G>A: G on the transcript, C on the forward strand
+    del_g = m.c_to_g("2299")  # c.2299del: one G, deleted with its forward-strand neighbour as anchor
+    anchor = region.fetch("1", del_g - 1, del_g - 1)
+    recs = sorted([(del_g - 1, anchor + region.fetch("1", del_g, del_g), anchor),
+                   (stop_g, region.fetch("1", stop_g, stop_g), "T")])
+    assert region.fetch("1", stop_g, stop_g) == "C"
+    vcf = tmp_path / "case.vcf"
+    vcf.write_text("##fileformat=VCFv4.2\n##reference=GRCh38\n##contig=<ID=chr1,length=248956422>\n"
+                   '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">\n'
+                   "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tP1\n"
+                   + "".join(f"chr1\t{p}\t.\t{r}\t{a}\t60\tPASS\t.\tGT\t0/1\n" for p, r, a in recs))
+    out = tmp_path / "out"
+    env = dict(os.environ, NO_COLOR="1", PYTHONPATH=str(Path(__file__).resolve().parents[2]))
+    r = subprocess.run([sys.executable, "-m", "irdtriage", "triage", str(vcf), "--reference", str(fa),
+                        "--transcripts", str(gff), "--genes", "USH2A", "--formats", "json", "--out", str(out)],
+                       capture_output=True, text=True, env=env, timeout=600)
+    assert r.returncode == 0, r.stderr
+    res = json.loads((out / "result.json").read_text())
+    found = {f["hgvs_c"]: f for f in res["findings"]}
+    assert set(found) == {"c.2299del", "c.11864G>A"}
+    assert found["c.2299del"]["hgvs_p"] == "p.(Glu767SerfsTer21)"
+    assert found["c.11864G>A"]["hgvs_p"] == "p.(Trp3955Ter)"
+    for f in found.values():
+        assert f["annotation_source"] == "built-in" and f["transcript"] == "NM_206933.2"
+        assert f["gene"] == "USH2A" and f["is_mane"] is False  # MANE Select is NM_206933.4
+        pvs1 = next(c for c in f["criteria"] if c["code"] == "PVS1")
+        assert pvs1["met"] is True  # null variants far from the last exon-exon junction
+    assert not any(lim["code"] == "no_consequence_annotation" for lim in res["input_limits"])
+    assert res["cautions"]
