@@ -54,7 +54,8 @@ class TxCache:
     def __init__(self, seq: Optional[SequenceProvider]):
         self.seq = seq
         self._maps: dict[str, TxMap] = {}
-        self._tx_seq: dict[str, str] = {}
+        self._tx_seq: dict[str, Optional[str]] = {}
+        self._prot: dict[str, str] = {}
 
     def map(self, tx: TxModel) -> TxMap:
         m = self._maps.get(tx.transcript_id)
@@ -73,6 +74,15 @@ class TxCache:
             s = m.transcript_sequence(self.seq)
             self._tx_seq[m.tx.transcript_id] = s if len(s) == m.length else None
         return self._tx_seq[m.tx.transcript_id]
+
+    def protein(self, m: TxMap, tx_seq: str) -> str:
+        """The reference translation from c.1 to the first stop (kept)."""
+        p = self._prot.get(m.tx.transcript_id)
+        if p is None:
+            from .hgvs_p import translate
+
+            p = self._prot[m.tx.transcript_id] = translate(tx_seq[m.cds_start - 1:m.cds_end], to_stop=True)
+        return p
 
 
 def _frac(nums: list[int], total: int) -> str:
@@ -129,7 +139,8 @@ def annotate_on(tx: TxModel, pos: int, ref: str, alt: str, cache: TxCache) -> Op
             res.notes.append(NO_SEQUENCE)
         else:
             alt_tx = revcomp(edit.alt) if m.minus else edit.alt
-            pc = protein_change(tx_seq, m.cds_start, m.cds_end, pl.tx_first, pl.tx_last, alt_tx)
+            pc = protein_change(tx_seq, m.cds_start, m.cds_end, pl.tx_first, pl.tx_last, alt_tx,
+                                cache.protein(m, tx_seq))
             terms.append(pc.term)
             res.hgvs_p = pc.hgvs
             res.protein_position, res.protein_length = pc.position, pc.length

@@ -66,8 +66,12 @@ def place(m: TxMap, e: Edit) -> Optional[Placement]:
     is_ins = not e.ref
     n_ex = len(m.exons)
     terms = pl.terms
-    # splice sites, per intron (transcript order k: between exon k and k + 1, 0-based)
-    for k in range(n_ex - 1):
+    # splice sites, per intron (transcript order k: between exon k and k + 1, 0-based), for the
+    # introns next to the touched exons and introns
+    near = set()
+    for kind, i in regions:
+        near.update((i - 1, i) if kind == "exon" else (i,) if kind == "intron" else ())
+    for k in sorted(x for x in near if 0 <= x < n_ex - 1):
         a, b = m.exons[k], m.exons[k + 1]
         ilo, ihi = (a[1] + 1, b[0] - 1) if not m.minus else (b[1] + 1, a[0] - 1)
         donor = {ilo, ilo + 1} if not m.minus else {ihi, ihi - 1}

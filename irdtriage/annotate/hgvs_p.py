@@ -58,11 +58,14 @@ class ProteinChange:
     fs_ter: Optional[int] = None
 
 
-def protein_change(tx_seq: str, cds_start: int, cds_end: int, a: int, b: int, alt: str) -> ProteinChange:
+def protein_change(tx_seq: str, cds_start: int, cds_end: int, a: int, b: int, alt: str,
+                   ref_prot: Optional[str] = None) -> ProteinChange:
     """Consequence of replacing cDNA positions ``a..b`` (1-based; ``a == b + 1`` is an insertion
     between ``b`` and ``a``) of ``tx_seq`` by ``alt`` (transcript orientation). The change must
-    touch the coding region ``cds_start..cds_end`` (stop codon included)."""
-    ref_prot = translate(tx_seq[cds_start - 1:cds_end], to_stop=True)
+    touch the coding region ``cds_start..cds_end`` (stop codon included). ``ref_prot``: the
+    reference translation (to its stop, kept), when the caller has it."""
+    if ref_prot is None:
+        ref_prot = translate(tx_seq[cds_start - 1:cds_end], to_stop=True)
     length = len(ref_prot) - 1 if ref_prot.endswith("*") else len(ref_prot)
     delta = len(alt) - (b - a + 1)
     # start codon touched (an insertion right after its A or G counts; one before c.1 does not)
@@ -71,9 +74,18 @@ def protein_change(tx_seq: str, cds_start: int, cds_end: int, a: int, b: int, al
         if alt_tx[cds_start - 1:cds_start + 2] != tx_seq[cds_start - 1:cds_start + 2] or delta:
             return ProteinChange("p.(Met1?)", "start_lost", 1, length)
     alt_tx = tx_seq[:a - 1] + alt + tx_seq[b:]
-    alt_prot = translate(alt_tx[cds_start - 1:], to_stop=True)
     first_codon = max(0, (a - cds_start) // 3)
-    i = 0
+    begin = cds_start - 1 + 3 * first_codon
+    if delta % 3 == 0 and b <= cds_end - 3:
+        # in frame and clear of the stop codon: beyond the changed codons the protein is the reference's
+        last_ref_codon = (b - cds_start) // 3
+        last_alt_codon = (b + delta - cds_start) // 3
+        window = translate(alt_tx[begin:cds_start - 1 + 3 * (last_alt_codon + 1)], to_stop=True)
+        tail = "" if "*" in window else ref_prot[last_ref_codon + 1:]
+        alt_prot = ref_prot[:first_codon] + window + tail
+    else:
+        alt_prot = ref_prot[:first_codon] + translate(alt_tx[begin:], to_stop=True)
+    i = first_codon
     n = min(len(ref_prot), len(alt_prot))
     while i < n and ref_prot[i] == alt_prot[i]:
         i += 1
@@ -102,9 +114,7 @@ def protein_change(tx_seq: str, cds_start: int, cds_end: int, a: int, b: int, al
         last = max(i, (b - cds_start) // 3)
         return ProteinChange(f"p.({_range(ref_prot, i, last)}delins{three(alt_prot[i:alt_stop + 1])})",
                              "stop_gained", i + 1, length, new_stop_last)
-    s = 0
-    while s < min(len(ref_prot), len(alt_prot)) - i and ref_prot[-1 - s] == alt_prot[-1 - s]:
-        s += 1
+    s = _common_suffix(ref_prot, alt_prot, min(len(ref_prot), len(alt_prot)) - i)
     ref_seg, alt_seg = ref_prot[i:len(ref_prot) - s], alt_prot[i:len(alt_prot) - s]
     if not ref_seg:  # insertion after residue i (1-based), placed C-terminally by the prefix-first trim
         k = len(alt_seg)
@@ -120,6 +130,16 @@ def protein_change(tx_seq: str, cds_start: int, cds_end: int, a: int, b: int, al
             "inframe_insertion" if len(alt_seg) > len(ref_seg) else "missense_variant")
     return ProteinChange(f"p.({_range(ref_prot, i, i + len(ref_seg) - 1)}delins{three(alt_seg)})", term, i + 1,
                          length)
+
+
+def _common_suffix(x: str, y: str, limit: int) -> int:
+    """Length of the common suffix of x and y, at most ``limit`` (compared in blocks)."""
+    s, block = 0, 256
+    while s + block <= limit and x[len(x) - s - block:len(x) - s] == y[len(y) - s - block:len(y) - s]:
+        s += block
+    while s < limit and x[-1 - s] == y[-1 - s]:
+        s += 1
+    return s
 
 
 def _range(prot: str, i: int, j: int) -> str:
