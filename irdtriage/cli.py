@@ -163,6 +163,10 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--allow-filtered", action="store_true", help="do not flag calls whose FILTER is not PASS")
     t.add_argument("--all-variants", action="store_true",
                    help="also report common alleles (BA1) and intronic/flanking alleles without splice evidence")
+    t.add_argument("--reference", metavar="FASTA",
+                   help="reference FASTA for built-in annotation of records without CSQ/ANN (needs --transcripts)")
+    t.add_argument("--transcripts", metavar="FILE",
+                   help="GFF3/GTF transcript models for built-in annotation of records without CSQ/ANN")
     add_output_opts(t, "irdtriage-results")
 
     rs = sub.add_parser("resources", help="build or show a local evidence bundle",
@@ -213,6 +217,18 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--out", metavar="DIR", help="output folder (default: beside the result)")
     r.add_argument("--phenopacket", metavar="FILE", help="input phenopacket to extend with interpretations")
 
+    an = sub.add_parser("annotate", help="add consequence and HGVS (CSQ INFO field) from a reference FASTA and "
+                                         "GFF3/GTF transcripts", epilog=CAUTION)
+    an.add_argument("vcf", help="VCF/BCF without CSQ/ANN annotation")
+    an.add_argument("--reference", metavar="FASTA",
+                    help="reference FASTA of the VCF's build (plain or bgzipped; without it amino-acid "
+                         "changes and indel HGVS are left unknown)")
+    an.add_argument("--transcripts", metavar="FILE", required=True, help="transcript models: GFF3 or GTF")
+    an.add_argument("--placement", metavar="SEQID=CHROM:ANCHOR:STRAND", action="append", default=[],
+                    help="place a gene-orientation record's coordinates on the genome (e.g. "
+                         "NG_009497.1=1:216428397:-); repeatable")
+    an.add_argument("--out", metavar="FILE", required=True, help="annotated VCF (.vcf, .vcf.gz or .bcf)")
+
     c = sub.add_parser("classify", help="class, rule, points and posterior for criteria as curators write them",
                        description="Combine ACMG/AMP criteria (e.g. \"PVS1, PM2_Supporting, PM3_Strong\") into a "
                                    "class with the rule set of panels/combining.yaml.", epilog=CAUTION)
@@ -250,6 +266,8 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
             return cmd_classify(args)
         if args.command == "resources":
             return cmd_resources(args, argv, parser)
+        if args.command == "annotate":
+            return cmd_annotate(args, argv)
     except InputError as e:
         print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
         return 2
@@ -368,10 +386,14 @@ def cmd_triage(args, argv) -> int:
         resources=args.resources, online=args.online, online_cache=args.online_cache,
         offline_replay=args.offline_replay, online_url=args.online_url, online_expire_days=args.cache_days,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
+        reference=args.reference, transcripts_path=args.transcripts,
     )
+    if args.reference and not args.transcripts:
+        raise InputError("--reference needs --transcripts (the transcript models to annotate with)", args.reference)
     inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
               ("rules", args.rules), ("curated evidence", args.curated),
-              ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf)]
+              ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf),
+              ("reference FASTA", args.reference), ("transcript", args.transcripts)]
     inputs += [("score table", p.split("=", 1)[-1]) for p in args.scores]
     if args.resources and not os.path.isdir(args.resources):
         raise InputError("evidence bundle folder not found", args.resources)
@@ -436,6 +458,31 @@ def _render_manifest(console, folder: str, m: dict) -> None:
             say(f"  from {s.get('name')}: version {version}; date {date}; {s.get('records_written', 0):,} of "
                 f"{s.get('records_read', 0):,} records read kept; sha256 {(s.get('sha256') or '')[:12]}")
     say(CAUTION)
+
+
+def cmd_annotate(args, argv) -> int:
+    from .annotate.annotate import Annotator
+    from .annotate.providers import parse_placement
+    from .annotate.vcf_writer import annotate_vcf
+
+    for label, path in (("VCF", args.vcf), ("reference FASTA", args.reference), ("transcript", args.transcripts)):
+        if path and not os.path.exists(path):
+            raise InputError(f"{label} file not found", path)
+    if os.path.abspath(args.out) in {os.path.abspath(p) for p in (args.vcf, args.reference, args.transcripts) if p}:
+        raise InputError("the output would overwrite an input", args.out)
+    placements = dict(parse_placement(p) for p in args.placement)
+    annotator = Annotator(args.transcripts, args.reference, placements)
+    try:
+        counts = annotate_vcf(args.vcf, args.out, annotator,
+                              command="irdtriage " + " ".join(shlex.quote(a) for a in argv))
+    finally:
+        annotator.close()
+    print(f"{args.out}: {counts['records']} records, {counts['annotated_alleles']} of {counts['alleles']} alleles "
+          f"on a transcript ({counts['entries']} transcript entries)")
+    if not args.reference:
+        print("no --reference: amino-acid changes and indel HGVS c. are left unknown")
+    print(CAUTION)
+    return 0
 
 
 def cmd_demo(args, argv) -> int:

@@ -55,6 +55,8 @@ class TriageOptions:
     command: str = ""
     all_variants: bool = False  # report common and silent non-coding alleles too
     phenotype_matcher: Any = None  # reuse a loaded matcher across cases (benchmarks)
+    reference: Optional[str] = None  # FASTA for built-in annotation (irdtriage.annotate)
+    transcripts_path: Optional[str] = None  # GFF3/GTF for built-in annotation of records without CSQ/ANN
     extra_warnings: list[str] = field(default_factory=list)
 
 
@@ -169,6 +171,13 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         from .regions import CodingRegions, load_exons
 
         regions = CodingRegions(load_exons(), panel, intake.build)
+    annotator = None
+    if opts.transcripts_path:  # built-in annotation for records without CSQ/ANN (irdtriage.annotate)
+        from .annotate.annotate import Annotator
+
+        annotator = Annotator(opts.transcripts_path, opts.reference)
+        warnings.append(annotator.describe() + ": used for records without CSQ/ANN")
+        mane_ids = [a for g in panel.genes.values() for a in (g.refseq_transcript, g.ensembl_transcript) if a]
     findings: list[models.Finding] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)
@@ -184,6 +193,9 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                 outside_regions += 1
                 continue
         annotation = pick_annotation(variant, layouts, panel, genes_here)
+        if annotator is not None and annotation.source == "none":
+            built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here, mane_ids)
+            annotation = built or annotation
         gene_symbol = annotation.gene if annotation.gene in panel.genes else genes_here[0]
         if annotation.gene != gene_symbol:
             annotation.gene = gene_symbol
@@ -194,6 +206,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
             annotation=annotation,
             quality_flags=tuple(quality_flags(variant, proband, quality)),
         ))
+    if annotator is not None:
+        annotator.close()
 
     # 6. evidence -------------------------------------------------------------------
     ev_config = EvidenceConfig().with_layouts(layouts)
@@ -352,7 +366,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     # 13. result ----------------------------------------------------------------------
     from .phenotype import phenotype_ranks
 
-    limits = input_limits(layouts)
+    limits = input_limits(layouts or ({"built-in": []} if annotator is not None else {}))
     res = result_mod.build_result(
         vcf_path=vcf_path, opts=opts, started=started, panel=panel, rules=rules, combining=combining, intake=intake,
         proband=proband, sex=sex, sex_source=sex_source, inferred_sex=sex_inf.sex,
