@@ -67,17 +67,17 @@ def files(tmp_path):
 
 
 def _read_back(path: Path) -> dict[tuple[int, str], list]:
-    """Entries per (pos, alt) through the project's own CSQ reader."""
+    """Entries per (pos, alt) through the project's own annotation reader."""
     out = {}
     with pysam.VariantFile(str(path)) as vf:
         layouts = annotation_layouts(vf.header)
-        assert list(layouts) == ["CSQ"]
+        assert list(layouts) == ["IRDT_TX"]  # the project's own field, not another tool's
         assert any(CAUTION in str(r) for r in vf.header.records)
         for rec in vf:
             for k, alt in enumerate(rec.alts, 1):
                 v = Variant(rec.chrom, rec.pos, rec.ref, alt, original_pos=rec.pos, original_ref=rec.ref,
                             original_alts=tuple(rec.alts), allele_index=k,
-                            info={"CSQ": rec.info["CSQ"]} if "CSQ" in rec.info else {})
+                            info={"IRDT_TX": rec.info["IRDT_TX"]} if "IRDT_TX" in rec.info else {})
                 out[(rec.pos, alt)] = all_annotations(v, layouts)
     return out
 
@@ -96,7 +96,7 @@ def test_annotate_writes_a_vcf_the_tool_reads_back(files):
     (stop,) = got[(55, "A")]
     (mis,) = got[(55, "C")]
     assert (stop.hgvs_c, stop.hgvs_p) == ("c.14G>A", "p.(Trp5Ter)")
-    assert (mis.hgvs_c, mis.hgvs_p, mis.extra["Protein_position"]) == ("c.14G>C", "p.(Trp5Ser)", "5/7")
+    assert (mis.hgvs_c, mis.hgvs_p, mis.extra["protein_position"]) == ("c.14G>C", "p.(Trp5Ser)", "5/7")
     (up,) = got[(2, "T")]  # 9 nt 5' of the transcript's first base (11 = c.-10): c.-19, upstream
     assert (up.hgvs_c, up.consequence) == ("c.-19C>T", ("upstream_gene_variant",))
     assert "4 of 4 alleles" in r.stdout
@@ -118,7 +118,7 @@ def test_annotate_flank_and_without_reference(files):
     (stop,) = got[(55, "A")]
     assert (stop.hgvs_c, stop.hgvs_p) == ("c.14G>A", "p.?")
     assert set(stop.consequence) == {"coding_sequence_variant", "splice_region_variant"}  # exon 2, base 2
-    assert "amino-acid change unknown" in stop.extra["Annotation_notes"].replace("%20", " ")
+    assert "amino-acid change unknown" in stop.extra["notes"].replace("%20", " ")
     (fs,) = got[(26, "T")]
     assert (fs.hgvs_c, fs.consequence[0]) == ("", "frameshift_variant")
 

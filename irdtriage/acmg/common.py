@@ -91,7 +91,7 @@ def protein_position(ann: Optional[Annotation]) -> tuple[Optional[int], Optional
     """Protein position and length, and which annotation field gave them."""
     if ann is None:
         return None, None, ""
-    for key in ("Protein_position", "AA.pos / AA.length", "AA.pos/AA.length", "AA_position"):
+    for key in ("Protein_position", "AA.pos / AA.length", "AA.pos/AA.length", "AA_position", "protein_position"):
         if key in ann.extra:
             pos, length = fraction(ann.extra[key])
             if pos is not None:

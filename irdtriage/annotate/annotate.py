@@ -168,21 +168,22 @@ def _nmd(m: TxMap, change_last: int, delta: int, stop_last: int) -> tuple[Option
 
 # ---------------------------------------------------------------------------------------------
 def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
+    # extra fields carry the names of the IRDT_TX layout (vcf_writer.FIELDS), read back the same way
     extra: dict[str, str] = {}
     if c.protein_position is not None:
-        extra["Protein_position"] = f"{c.protein_position}/{c.protein_length}" if c.protein_length else \
+        extra["protein_position"] = f"{c.protein_position}/{c.protein_length}" if c.protein_length else \
             str(c.protein_position)
     if c.protein:
-        extra["Protein"] = c.protein
+        extra["protein"] = c.protein
     if c.splice_distance is not None:
-        extra["Splice_distance"] = str(c.splice_distance)
-        extra["Splice_side"] = c.splice_side
+        extra["splice_distance"] = str(c.splice_distance)
+        extra["splice_side"] = c.splice_side
     if c.nmd is not None:
-        extra["NMD_50nt"] = "yes" if c.nmd else "no"
+        extra["nmd_50nt"] = "yes" if c.nmd else "no"
     if c.nmd_distance is not None:
-        extra["Stop_to_last_junction_nt"] = str(c.nmd_distance)
+        extra["stop_to_last_junction_nt"] = str(c.nmd_distance)
     if c.notes:
-        extra["Annotation_notes"] = "; ".join(c.notes)
+        extra["notes"] = "; ".join(c.notes)
     # MANE Select only for the same accession.version (another version may encode another protein)
     mane = {x for x in mane_ids}
     is_mane = c.transcript in mane if "." in c.transcript else versionless(c.transcript) in {versionless(x) for x in mane}

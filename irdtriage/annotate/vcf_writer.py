@@ -1,7 +1,8 @@
-"""The ``annotate`` command: a VCF in, the same VCF with a per-transcript ``CSQ`` INFO field out.
+"""The ``annotate`` command: a VCF in, the same VCF with a per-transcript ``IRDT_TX`` INFO field out.
 
-The field is pipe-delimited with its layout declared in the header (``Format: ...``), the
-layout :mod:`irdtriage.consequence.annotations` reads, so ``irdtriage triage`` takes the
+The field is the project's own: pipe-delimited, one entry per allele and transcript, with its
+layout declared in the header (``Format: ...``) and read back by
+:mod:`irdtriage.consequence.annotations`, so ``irdtriage triage`` takes the
 written file as an annotated VCF. The allele of each entry is written in the minimal form that
 reader expects (:func:`irdtriage.consequence.annotations.csq_allele`). Values are
 percent-encoded where they would break the field (``,`` ``|`` ``;`` ``=`` and spaces).
@@ -21,10 +22,10 @@ from ..consequence.annotations import csq_allele
 from ..errors import InputError
 from .annotate import Annotator, TxConsequence
 
-FIELDS = ("Allele", "Consequence", "SYMBOL", "Feature", "Protein", "EXON", "INTRON", "HGVSc", "HGVSp",
-          "Protein_position", "Splice_distance", "Splice_side", "NMD_50nt", "Stop_to_last_junction_nt",
-          "Annotation_notes")
-KEY = "CSQ"
+FIELDS = ("allele", "consequence", "gene", "transcript", "protein", "exon", "intron", "hgvs_c", "hgvs_p",
+          "protein_position", "splice_distance", "splice_side", "nmd_50nt", "stop_to_last_junction_nt",
+          "notes")
+KEY = "IRDT_TX"
 
 
 def _enc(value: object) -> str:
@@ -65,8 +66,9 @@ def annotate_vcf(vcf_path: str, out: str, annotator: Annotator, command: str = "
     counts = {"records": 0, "alleles": 0, "annotated_alleles": 0, "entries": 0}
     with vin:
         header = vin.header.copy()
-        if KEY in header.info or "ANN" in header.info:
-            raise InputError(f"the VCF already carries {KEY if KEY in header.info else 'ANN'} annotation; "
+        present = [k for k in (KEY, "CSQ", "ANN") if k in header.info]
+        if present:
+            raise InputError(f"the VCF already carries {present[0]} annotation; "
                              "annotate an unannotated VCF", vcf_path)
         header.add_meta("INFO", items=[("ID", KEY), ("Number", "."), ("Type", "String"),
                                        ("Description", "Consequence per transcript from irdtriage built-in "

@@ -26,7 +26,7 @@ import pysam
 
 from ..models import Annotation, Panel, Variant
 
-ANNOTATION_KEYS = ("CSQ", "ANN")
+ANNOTATION_KEYS = ("CSQ", "ANN", "IRDT_TX")  # IRDT_TX: written by `irdtriage annotate`
 
 # Sequence Ontology consequence terms, most severe first.  The order is common practice
 # among annotators (loss of the transcript / splice sites / stop codon first, then
@@ -157,6 +157,10 @@ _ROLES = {
         "Allele": "allele", "Consequence": "consequence", "IMPACT": "impact", "SYMBOL": "gene",
         "Feature": "transcript", "EXON": "exon", "INTRON": "intron", "HGVSc": "hgvs_c", "HGVSp": "hgvs_p",
     },
+    "IRDT_TX": {
+        "allele": "allele", "consequence": "consequence", "gene": "gene", "transcript": "transcript",
+        "exon": "exon", "intron": "intron", "hgvs_c": "hgvs_c", "hgvs_p": "hgvs_p",
+    },
     "ANN": {
         "Allele": "allele", "Annotation": "consequence", "Annotation_Impact": "impact",
         "Gene_Name": "gene", "Feature_ID": "transcript", "Rank": "rank", "HGVS.c": "hgvs_c",
@@ -202,17 +206,17 @@ def _entries(variant: Variant, layouts: dict[str, list[str]]) -> list[tuple[str,
             out.extend((key, e) for e in entries)
             continue
         # alleles are case-insensitive (VCF 4.3 section 1.6.1): compare them uppercased
-        if key == "CSQ":
+        if key in ("CSQ", "IRDT_TX"):
             wanted = {csq_allele(variant.original_ref.upper(), tuple(a.upper() for a in variant.original_alts),
                                  variant.allele_index)}
         else:
             wanted = {variant.original_alts[variant.allele_index - 1].upper()}
-        mine = [e for e in entries if (e.get("Allele") or "").upper() in wanted]
+        mine = [e for e in entries if (e.get("Allele") or e.get("allele") or "").upper() in wanted]
         if not mine:  # annotator wrote alleles differently: accept any reasonable spelling
             alt = variant.original_alts[variant.allele_index - 1].upper()
             valt = variant.alt.upper()
             loose = {alt, valt, alt[1:] or "-", valt[1:] or "-"}
-            mine = [e for e in entries if (e.get("Allele") or "").upper() in loose]
+            mine = [e for e in entries if (e.get("Allele") or e.get("allele") or "").upper() in loose]
         out.extend((key, e) for e in mine)
     return out
 
