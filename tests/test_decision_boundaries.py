@@ -26,13 +26,13 @@ from __future__ import annotations
 
 from pathlib import Path
 
-import pysam
 import pytest
 
 from irdtriage.genotype import de_novo_evidence
 from irdtriage.panel import load_panel
 from irdtriage.pipeline import triage
 from irdtriage.vcf import read_vcf
+from vcf_builder import write_csq_vcf
 
 CSQ = ("Allele|Consequence|IMPACT|SYMBOL|Gene|Feature_type|Feature|BIOTYPE|EXON|INTRON|HGVSc|HGVSp|"
        "Protein_position|gnomADe_AF")
@@ -50,25 +50,7 @@ RPE65_STOP = csq("T", "RPE65", "stop_gained", "5/14", "c.400C>T", "p.(Gln134Ter)
 
 
 def write_vcf(path: Path, samples: list[str], records: list[tuple]) -> str:
-    lines = [
-        "##fileformat=VCFv4.2",
-        "##reference=GRCh38",
-        "##contig=<ID=chr1,length=248956422>",
-        "##contig=<ID=chr19,length=58617616>",
-        '##FILTER=<ID=PASS,Description="All filters passed">',
-        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations. Format: {CSQ}">',
-        '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">',
-        '##FORMAT=<ID=AD,Number=R,Type=Integer,Description="Allelic depths">',
-        '##FORMAT=<ID=DP,Number=1,Type=Integer,Description="Depth">',
-        '##FORMAT=<ID=GQ,Number=1,Type=Integer,Description="Genotype quality">',
-        "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\t" + "\t".join(samples),
-    ]
-    for chrom, pos, ref, alt, ann, calls in records:
-        lines.append("\t".join([chrom, str(pos), ".", ref, alt, "500", "PASS", f"CSQ={ann}", "GT:AD:DP:GQ", *calls]))
-    plain = path.with_suffix("")
-    plain.write_text("\n".join(lines) + "\n")
-    pysam.tabix_index(str(plain), preset="vcf", force=True)
-    return str(plain) + ".gz"
+    return write_csq_vcf(path, samples, records, CSQ)
 
 
 def trio_vcf(tmp_path: Path, dad: str) -> str:

@@ -15,36 +15,17 @@ from __future__ import annotations
 
 from pathlib import Path
 
-import pysam
 
 from irdtriage.pipeline import triage
+from vcf_builder import write_csq_vcf
 
 CSQ = ("Allele|Consequence|IMPACT|SYMBOL|Gene|Feature_type|Feature|BIOTYPE|EXON|INTRON|HGVSc|HGVSp|"
        "Protein_position|gnomADe_AF")
-# GRCh38 primary-assembly lengths (GRC; from memory), so the build is recognised as GRCh38.
-CONTIGS = {"chr2": 242193529, "chr6": 170805979, "chr9": 138394717, "chr10": 133797422, "chr11": 135086622,
-           "chr17": 83257441, "chr19": 58617616}
 HET, HOM, REF = "0/1:16,15:31:99", "1/1:0,30:30:99", "0/0:32,0:32:99"
 
 
 def write_vcf(path: Path, samples: list[str], records: list[tuple]) -> str:
-    lines = ["##fileformat=VCFv4.2", "##reference=GRCh38"]
-    lines += [f"##contig=<ID={c},length={n}>" for c, n in CONTIGS.items()]
-    lines += [
-        '##FILTER=<ID=PASS,Description="All filters passed">',
-        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations. Format: {CSQ}">',
-        '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">',
-        '##FORMAT=<ID=AD,Number=R,Type=Integer,Description="Allelic depths">',
-        '##FORMAT=<ID=DP,Number=1,Type=Integer,Description="Depth">',
-        '##FORMAT=<ID=GQ,Number=1,Type=Integer,Description="Genotype quality">',
-        "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\t" + "\t".join(samples),
-    ]
-    for chrom, pos, ref, alt, csq, calls in records:
-        lines.append("\t".join([chrom, str(pos), ".", ref, alt, "500", "PASS", f"CSQ={csq}", "GT:AD:DP:GQ", *calls]))
-    plain = path.with_suffix("")
-    plain.write_text("\n".join(lines) + "\n")
-    pysam.tabix_index(str(plain), preset="vcf", force=True)
-    return str(plain) + ".gz"
+    return write_csq_vcf(path, samples, records, CSQ)
 
 
 def csq(alt, gene, tx, consequence, exon, c, p, prot, intron=""):
