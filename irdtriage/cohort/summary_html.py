@@ -40,7 +40,7 @@ def bar_chart(genes: list[dict], limit: int = 25) -> str:
     top = max(g["cases"] for g in genes) or 1
     row_h, label_w, bar_w = 22, 90, 560
     height = row_h * len(genes) + 30
-    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{label_w + bar_w + 60}" height="{height}" '
+    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{label_w + bar_w + 130}" height="{height}" '
              f'role="img" aria-label="cases per gene">']
     for i, g in enumerate(genes):
         y = 10 + i * row_h
