@@ -9,6 +9,10 @@ stream back as cases finish (``as_completed``). A worker that dies mid-case lose
 scheduler runs its cases again on another worker (``distributed.scheduler.allowed-failures``
 times), and a case that still cannot finish is recorded as failed with its one-line error.
 dask is imported only on this path (the optional extra ``irdtriage[cohort]``).
+
+Workers read the inputs and write ``OUT/<case>/`` by the paths the batch resolved, so a
+scheduler whose workers run on other machines needs the manifest's files and ``--out`` on a file
+system they all share. Nothing is sent anywhere but to the scheduler the user names.
 """
 from __future__ import annotations
 
