@@ -702,6 +702,12 @@ def cmd_batch(args, argv) -> int:
     try:
         batch = run_batch(specs, settings, engine, on_record=progress.update,
                           manifest=os.path.abspath(args.manifest), engine_name=name)
+    except (KeyboardInterrupt, Terminated) as stop:
+        progress.close()
+        how = "interrupted" if isinstance(stop, KeyboardInterrupt) else f"stopped by {signal.Signals(stop.signum).name}"
+        print(f"irdtriage: {how}; the cases that finished are in {args.out} (each folder complete) and recorded in "
+              f"its batch.json; run the same command again to go on with the rest", file=sys.stderr)
+        return 130 if isinstance(stop, KeyboardInterrupt) else 128 + stop.signum
     finally:
         progress.close()
     paths = write_summary(settings["out"], batch)

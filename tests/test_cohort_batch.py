@@ -129,3 +129,19 @@ def test_relative_paths_resolve_from_the_manifest_folder(tmp_path):
     assert spec.vcf == str(tmp_path / "sub" / "x" / "a.vcf.gz")
     assert spec.hpo == "@" + str(tmp_path / "sub" / "terms.txt")
     assert spec.previous == "/abs/old.json" and spec.line == 2
+
+
+def test_progress_bar_on_a_terminal_and_lines_when_piped():
+    import io
+
+    from irdtriage.cohort.progress import Progress
+
+    for terminal in (True, False):
+        s = io.StringIO()
+        p = Progress(2, stream=s, terminal=terminal)
+        p.update({"case": "A", "status": "ok", "case_status": "SOLVED", "seconds": 0.2})
+        p.update({"case": "B", "status": "failed", "error": "b.vcf: VCF file not found"})
+        p.close()
+        text = s.getvalue()
+        assert "[2/2] B: FAILED: b.vcf: VCF file not found" in text
+        assert ("━" in text and "2/2" in text) if terminal else text.splitlines()[0] == "[1/2] A: SOLVED (0.2 s)"

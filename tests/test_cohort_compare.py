@@ -119,7 +119,7 @@ def test_batch_changed_column(real, tmp_path):
     """A manifest's `previous` column: the planted status change appears in batch.json and cohort.tsv."""
     folder, result, path = real
     records, sex = KINDS[1]
-    vcf = write_vcf(tmp_path / "case.vcf", "S1", records)
+    write_vcf(tmp_path / "case.vcf", "S1", records)
     prev = copy.deepcopy(result)
     prev["case"]["status"] = "UNSOLVED" if result["case"]["status"] != "UNSOLVED" else "SOLVED"
     (tmp_path / "prev.json").write_text(json.dumps(prev))

@@ -77,11 +77,21 @@ def local_engine(jobs: int) -> Engine:
                                        initializer=warm, initargs=(settings,))
             try:
                 futures = {pool.submit(run_case, spec, settings, fp): (spec, fp) for spec, fp in pending}
-                for fut in as_completed(futures):
-                    try:
-                        yield fut.result()
-                    except BrokenProcessPool:
-                        broken.append(futures[fut])
+                seen = set()
+                try:
+                    for fut in as_completed(futures):
+                        seen.add(fut)
+                        try:
+                            yield fut.result()
+                        except BrokenProcessPool:
+                            broken.append(futures[fut])
+                except KeyboardInterrupt:
+                    # let the running cases finish (their folders are complete) and record them
+                    pool.shutdown(wait=True, cancel_futures=True)
+                    for fut in futures:
+                        if fut not in seen and fut.done() and not fut.cancelled() and fut.exception() is None:
+                            yield fut.result()
+                    raise
             finally:
                 pool.shutdown(wait=True, cancel_futures=True)
             if not broken:
