@@ -239,6 +239,36 @@ def build_parser() -> argparse.ArgumentParser:
     cg = c.add_mutually_exclusive_group()
     cg.add_argument("--gene", help="use this gene's rule set (default: the default rule set)")
     cg.add_argument("--rule-set", metavar="NAME", help="use this rule set by name")
+
+    b = sub.add_parser("batch", help="triage every case of a manifest; summary across the cases",
+                       description="Triage every case of a tab-separated manifest (columns case, vcf, sample, "
+                                   "phenopacket, hpo, ped, sex, previous; case and vcf required) into OUT/<case>/, "
+                                   "then write OUT/batch.json, OUT/cohort.tsv and OUT/cohort.html. Exit 0 when "
+                                   "every case finished, 2 when any failed (each failure is recorded).",
+                       epilog=CAUTION)
+    b.add_argument("manifest", help="manifest TSV (relative paths resolve from its folder)")
+    b.add_argument("--out", metavar="DIR", required=True, help="batch folder: one sub-folder per case")
+    b.add_argument("--jobs", "-j", type=_non_negative_int, default=None,
+                   help="local worker processes (default: all cores)")
+    b.add_argument("--force", action="store_true", help="run every case again, even those unchanged since the last run")
+    be = b.add_mutually_exclusive_group()
+    be.add_argument("--scheduler", metavar="ADDRESS", help="run on your dask.distributed scheduler (tcp://host:port)")
+    be.add_argument("--dask-local", metavar="N", type=_non_negative_int, default=None,
+                    help="run on a dask LocalCluster of N worker processes on this machine")
+    add_panel_opts(b)
+    b.add_argument("--tier", choices=("established", "moderate", "limited"), default=None,
+                   help="as for triage (default: every gene except disputed ones)")
+    b.add_argument("--rules", metavar="FILE", help="criteria rule set YAML (default: the bundled one)")
+    b.add_argument("--formats", type=_formats, default=list(FORMATS), metavar="LIST",
+                   help=f"outputs per case, comma-separated from {','.join(FORMATS)} (default: all)")
+
+    cm = sub.add_parser("compare", help="what changed for a case between two result.json files",
+                        description="Compare an earlier result.json of a case with a new one: class changes per "
+                                    "finding, new or lost findings, gene rank and genotype-fit changes, case status; "
+                                    "clinically relevant changes first.", epilog=CAUTION)
+    cm.add_argument("old", help="the earlier result.json")
+    cm.add_argument("new", help="the new result.json")
+    cm.add_argument("--json", action="store_true", help="machine-readable output")
     return p
 
 
@@ -268,6 +298,10 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
             return cmd_resources(args, argv, parser)
         if args.command == "annotate":
             return cmd_annotate(args, argv)
+        if args.command == "batch":
+            return cmd_batch(args, argv)
+        if args.command == "compare":
+            return cmd_compare(args)
     except InputError as e:
         print(f"irdtriage: error: {e.one_line()}", file=sys.stderr)
         return 2
@@ -685,3 +719,60 @@ def cmd_classify(args) -> int:
 
 if __name__ == "__main__":  # pragma: no cover
     sys.exit(main())
+
+
+def cmd_batch(args, argv) -> int:
+    """Run every case of a manifest (local process pool, or dask.distributed), then the summary."""
+    from .cohort.manifest import read_manifest
+    from .cohort.progress import Progress
+    from .cohort.runner import local_engine, run_batch
+    from .cohort.summary import write_summary
+
+    specs = read_manifest(args.manifest)
+    for label, path in (("panel", args.panel), ("rules", args.rules)):
+        if path and not os.path.exists(path):
+            raise InputError(f"{label} file not found", path)
+    genes, tier_warnings = _tier_genes(args)
+    settings = {"out": os.path.abspath(args.out), "panel_path": args.panel, "rules_path": args.rules,
+                "genes": list(genes) if genes else None, "formats": list(args.formats), "force": args.force,
+                "extra_warnings": tier_warnings, "command": "irdtriage " + " ".join(shlex.quote(a) for a in argv)}
+    if args.scheduler or args.dask_local:
+        from .cohort.dask_runner import dask_engine
+
+        engine = dask_engine(scheduler=args.scheduler, local_workers=args.dask_local)
+        name = f"dask {args.scheduler}" if args.scheduler else f"dask LocalCluster ({args.dask_local} workers)"
+    else:
+        cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else (os.cpu_count() or 1)
+        jobs = args.jobs or cores
+        engine, name = local_engine(jobs), f"local pool ({jobs} processes)"
+    progress = Progress(len(specs))
+    try:
+        batch = run_batch(specs, settings, engine, on_record=progress.update,
+                          manifest=os.path.abspath(args.manifest), engine_name=name)
+    except (KeyboardInterrupt, Terminated) as stop:
+        progress.close()
+        how = "interrupted" if isinstance(stop, KeyboardInterrupt) else f"stopped by {signal.Signals(stop.signum).name}"
+        print(f"irdtriage: {how}; the cases that finished are in {args.out} (each folder complete) and recorded in "
+              f"its batch.json; run the same command again to go on with the rest", file=sys.stderr)
+        return 130 if isinstance(stop, KeyboardInterrupt) else 128 + stop.signum
+    finally:
+        progress.close()
+    paths = write_summary(settings["out"], batch)
+    c = batch["counts"]
+    print(f"{c['cases']} case(s): {c['ok']} run, {c['unchanged']} unchanged (skipped), {c['failed']} failed; "
+          f"wrote {paths['tsv']} and {paths['html']}")
+    print("CAUTION: " + " ".join(CAUTION.split()))
+    return 2 if c["failed"] or c.get("not run") else 0
+
+
+def cmd_compare(args) -> int:
+    import json
+
+    from .cohort.compare import compare, load_result, render_text
+
+    diff = compare(load_result(args.old), load_result(args.new))
+    if args.json:
+        print(json.dumps({"old": args.old, "new": args.new, **diff}, indent=2, ensure_ascii=False))
+    else:
+        sys.stdout.write(render_text(diff, args.old, args.new))
+    return 0

@@ -57,6 +57,8 @@ class TriageOptions:
     phenotype_matcher: Any = None  # reuse a loaded matcher across cases (benchmarks)
     reference: Optional[str] = None  # FASTA for built-in annotation (irdtriage.annotate)
     transcripts_path: Optional[str] = None  # GFF3/GTF for built-in annotation of records without CSQ/ANN
+    loaded_panel: Any = None  # reuse a panel loaded from panel_path/genes across cases (irdtriage.cohort workers)
+    loaded_rules: Any = None  # reuse rules loaded from rules_path across cases (irdtriage.cohort workers)
     extra_warnings: list[str] = field(default_factory=list)
 
 
@@ -92,8 +94,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     warnings: list[str] = list(opts.extra_warnings)
 
     # 1. panel and rules ------------------------------------------------------------
-    panel = load_panel(opts.panel_path, genes=opts.genes)
-    rules = load_rules(opts.rules_path)
+    panel = opts.loaded_panel if opts.loaded_panel is not None else load_panel(opts.panel_path, genes=opts.genes)
+    rules = opts.loaded_rules if opts.loaded_rules is not None else load_rules(opts.rules_path)
     combining = load_combining()
 
     # 2. phenotype input ------------------------------------------------------------
