@@ -188,8 +188,8 @@ def resolve_build(header: pysam.VariantHeader, wanted: Optional[str], path=None)
         evidence = ev[0]
         others = [(b, e) for b, e in names if b != build]
         named_unsupported = _unsupported(header, by_name=True)
-        if named_unsupported and not names:  # e.g. ##reference=chm13v2.0.fa over GRCh38 contig lengths
-            others = [(named_unsupported.split(" (")[0], named_unsupported.split(" (", 1)[1].rstrip(")"))]
+        if named_unsupported:  # e.g. ##reference=chm13v2.0.fa over GRCh38 contig lengths
+            others = [(named_unsupported.split(" (")[0], named_unsupported.split(" (", 1)[1].rstrip(")"))] + others
         if want is not None and want != build:
             raise InputError(
                 f"VCF looks like {build} ({evidence}) but --build {want} was requested; "

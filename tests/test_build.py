@@ -59,6 +59,17 @@ def test_reference_lines(tmp_path, line, expected):
     assert detect_build(header(tmp_path, [line])) == expected
 
 
+def test_t2t_reference_name_over_grch38_lengths_stops(tmp_path):
+    # GRCh38 chr1 is 248,956,422 bp (standards notes); "chm13" names the T2T-CHM13 assembly (common
+    # practice): a header naming both is conflicting build evidence, even when contigs say GRCh38
+    h = header(tmp_path, ["##reference=chm13v2.0.fa", "##contig=<ID=chr1,length=248956422,assembly=GRCh38>"])
+    with pytest.raises(InputError) as ei:
+        detect_build(h, "c.vcf")
+    assert "chm13v2.0.fa" in str(ei.value) and "T2T-CHM13" in str(ei.value)
+    build, _, warns = resolve_build(h, "GRCh38", "c.vcf")  # --build GRCh38 settles it, with a warning
+    assert build == "GRCh38" and any("chm13" in w for w in warns)
+
+
 def test_reference_line_contradicting_lengths_stops(tmp_path):
     # GRCh37 chr1 is 249,250,621 bp (standards notes); hg38 names GRCh38 (common practice)
     h = header(tmp_path, ["##reference=hg38.fa", "##contig=<ID=chr1,length=249250621>"])
