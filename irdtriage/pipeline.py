@@ -84,7 +84,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .consequence.annotations import pick_annotation
     from .evidence import EvidenceConfig, collect_evidence
     from .panel import GeneLocator, load_panel
-    from .vcf import QualityThresholds, quality_flags, read_vcf, structural_warnings
+    from .vcf import QualityThresholds, quality_flags, read_vcf
 
     started = _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat().replace("+00:00", "Z")
     warnings: list[str] = list(opts.extra_warnings)
@@ -127,7 +127,6 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                       build=opts.build, padding=opts.padding, quality=quality,
                       unannotated_intervals=None if opts.all_variants else exon_intervals)
     warnings.extend(intake.warnings)
-    warnings.extend(structural_warnings(intake.structural_events))
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
     if opts.phenopacket:
@@ -169,10 +168,16 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         from .regions import CodingRegions, load_exons
 
         regions = CodingRegions(load_exons(), panel, intake.build)
+    # copy-number and structural events (symbolic records, explicit alleles >= 50 bp): irdtriage.sv
+    from .sv.findings import make_findings
+
+    sv_findings, sv_warnings, sv_consumed = make_findings(
+        intake.structural_events, intake.variants, panel, intake.build, proband, sexes, vcf_path, locator.genes_at)
+    warnings.extend(sv_warnings)
     findings: list[models.Finding] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)
-        if call is None or call.alt_copies == 0:
+        if call is None or call.alt_copies == 0 or id(variant) in sv_consumed:
             continue
         genes_here = locator.genes_at(variant.chrom, variant.pos, variant.pos + max(len(variant.ref), 1) - 1)
         if not genes_here:
@@ -194,6 +199,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
             annotation=annotation,
             quality_flags=tuple(quality_flags(variant, proband, quality)),
         ))
+    findings.extend(sv_findings)
 
     # 6. evidence -------------------------------------------------------------------
     ev_config = EvidenceConfig().with_layouts(layouts)
@@ -206,7 +212,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         online_expire_days=opts.online_expire_days)
     try:
         for f in findings:
-            f.evidence = collect_evidence(f.variant, f.annotation, ev_config, sources)
+            if f.structural is None:  # structural events: no population or score data is read for them
+                f.evidence = collect_evidence(f.variant, f.annotation, ev_config, sources)
         evidence_sources, evidence_notes = assemble.finish(sources)
     finally:
         sources.close()
@@ -242,7 +249,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         gene = panel.genes[f.gene]
         base = automated.get(id(f))
         if base is None:
-            base = automated[id(f)] = acmg_engine.automated(f, gene, rules)
+            base = automated[id(f)] = (f.structural.automated if f.structural is not None
+                                       else acmg_engine.automated(f, gene, rules))
         f.criteria = acmg_engine.evaluate(f, gene, rules, extra=extra,
                                           curated=curated.get(f.variant.key, []), base=base)
         f.classification = combine(f.criteria, combining.for_gene(f.gene))
@@ -265,7 +273,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .rank import PHENOTYPE_FITS
 
     nc = select_noncoding(
-        findings, panel, proband, curated=curated, listed_table=load_noncoding_alleles(),
+        [f for f in findings if f.structural is None], panel, proband, curated=curated, listed_table=load_noncoding_alleles(),
         matches=matches, phenotype_given=matcher is not None,
         fits_retina=None if retinal is None else bool(retinal[0]), threshold=PHENOTYPE_FITS,
         mother=mother, father=father)
@@ -277,12 +285,13 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     if not opts.all_variants:
         kept = []
         for f in findings:
-            why = None if f.noncoding is not None else _not_reported(f, curated)
+            why = None if f.noncoding is not None or f.structural is not None else _not_reported(f, curated)
             if why is None:
                 kept.append(f)
             else:
                 counts_extra[why] += 1
         findings = kept
+    counts_extra["structural_findings"] = sum(1 for f in findings if f.structural is not None)
     counts_extra["noncoding_candidates_reported"] = sum(1 for f in findings if f.noncoding_candidate)
     counts_extra["noncoding_listed_reported"] = sum(1 for f in findings if f.noncoding is not None
                                                     and not f.noncoding_candidate)
