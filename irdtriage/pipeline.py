@@ -43,6 +43,7 @@ class TriageOptions:
     curated_path: Optional[str] = None
     popfreq_vcf: Optional[str] = None
     clinical_vcf: Optional[str] = None
+    sv_vcf: Optional[str] = None  # a second VCF with the person's copy-number / structural calls (irdtriage.sv)
     score_tables: Sequence[str] = ()
     resources: Optional[str] = None  # evidence bundle folder (irdtriage.evidence.bundle)
     online: bool = False  # ask a public service for what local evidence lacks (coordinates only)
@@ -174,6 +175,13 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     sv_findings, sv_warnings, sv_consumed = make_findings(
         intake.structural_events, intake.variants, panel, intake.build, proband, sexes, vcf_path, locator.genes_at)
     warnings.extend(sv_warnings)
+    if opts.sv_vcf:
+        from .sv.findings import from_second_vcf
+
+        more, more_warnings = from_second_vcf(opts.sv_vcf, panel, intake.build, proband, sexes, opts.padding,
+                                              locator.genes_at)
+        sv_findings += more
+        warnings.extend(more_warnings)
     findings: list[models.Finding] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)

@@ -169,3 +169,14 @@ def test_long_explicit_deletion_becomes_a_structural_finding(tmp_path):
     assert s["source"] == "sequence" and s["length"] == 60
     assert s["extent"] == "within one exon" and s["exons"] == [13] and s["frame"] == "in frame"
     assert not [f for f in r["findings"] if f["kind"] == "small"]
+
+
+def test_structural_calls_from_a_second_vcf(tmp_path):
+    # small variants in the main VCF, the deletion in a one-sample structural-variant VCF (another sample name)
+    main = write_vcf(tmp_path / "small.vcf", ["KID"], [(*STOP_EX14[:6], STOP_EX14[6][:1])])
+    sv = write_vcf(tmp_path / "sv.vcf", ["KID_SV"], [(*DEL_6_13[:6], DEL_6_13[6][:1])])
+    r = triage(main, hpo=ABCA4_HPO, sv_vcf=sv)
+    (found,) = _structural(r, "ABCA4")
+    assert found["structural"]["exons"] == list(range(6, 14))
+    assert r["genes"][0]["symbol"] == "ABCA4" and r["genes"][0]["genotype_fit"] == "biallelic phase unknown"
+    assert any("KID_SV is read as KID" in w for w in r["warnings"])

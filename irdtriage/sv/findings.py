@@ -139,3 +139,42 @@ def make_findings(raw_events: Iterable[dict[str, Any]], variants: Iterable[Varia
             }, auto)
             out.append(f)
     return out, warnings, consumed
+
+
+def from_second_vcf(path: str, panel: Panel, build: str, proband: str, sexes: dict[str, Optional[str]],
+                    padding: int, genes_at) -> tuple[list[Finding], list[str]]:
+    """Structural findings from a second VCF (``triage --sv-vcf``) read by the same intake.
+
+    Its sample is the proband when the file has one sample, else the sample named like the proband
+    (relatives are matched by name).  Its short alleles are not read: they belong to the main VCF."""
+    import pysam
+
+    from ..errors import InputError
+    from ..vcf import read_vcf
+
+    try:
+        with pysam.VariantFile(path) as vf:
+            names = list(vf.header.samples)
+    except (OSError, ValueError) as e:
+        raise InputError(f"cannot read the structural-variant VCF ({e})", path)
+    if proband in names:
+        sample = proband
+    elif len(names) == 1:
+        sample = names[0]
+    else:
+        raise InputError(f"the structural-variant VCF has no sample {proband!r} (samples: {', '.join(names) or 'none'})",
+                         path)
+    intake = read_vcf(path, panel, sample=sample, build=build, padding=padding)
+    warnings = [f"{path}: {w}" for w in intake.warnings]
+    if intake.build and intake.build != build:
+        raise InputError(f"the structural-variant VCF is on {intake.build}, the main VCF on {build}", path)
+    events = intake.structural_events
+    if sample != proband:  # one-sample file: its sample is the proband
+        for raw in events:
+            raw["samples"] = {proband if s == sample else s: d for s, d in (raw.get("samples") or {}).items()}
+        for v in intake.variants:
+            if sample in v.calls:
+                v.calls[proband] = v.calls.pop(sample)
+        warnings.append(f"{path}: its only sample {sample} is read as {proband}")
+    found, more, _ = make_findings(events, intake.variants, panel, build, proband, sexes, path, genes_at)
+    return found, warnings + more
