@@ -92,7 +92,8 @@ class VcfIntake:
 
     structural_events: symbolic records (<DEL>, <DUP>, <INV>, <CNV>, breakends ...) in the
     panel regions, as plain dicts (chrom, pos, end, svtype, alt, genotype, zygosity, genes,
-    line): not classified by this version, listed so that they are reviewed.
+    line, alt_index, and as written: ref, id, qual, filters, info_text, samples with GT/CN): checked
+    and classified by irdtriage.sv; breakends are listed for review.
     """
 
     path: str
