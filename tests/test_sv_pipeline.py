@@ -22,8 +22,7 @@ The events themselves are constructed for the tests.
 """
 from __future__ import annotations
 
-from pathlib import Path
-
+import pytest
 from sv_vcf import csq, small_record, sv_record, write_ped, write_vcf
 
 from irdtriage.pipeline import triage
@@ -68,7 +67,6 @@ def test_deletion_plus_stop_is_biallelic_phase_unknown_and_ranked_first(tmp_path
     assert top["symbol"] == "ABCA4"
     assert top["genotype_fit"] == "biallelic phase unknown"
     assert any("MLPA" in step for step in r["case"]["next_steps"])
-    assert any(w for w in r["warnings"]) is not None  # warnings present as a list
     assert not any("not classified by this version" in w for w in r["warnings"])
 
 
@@ -113,7 +111,8 @@ def test_intronic_only_deletion_is_reported_as_such_without_pvs1(tmp_path):
     assert pvs1["met"] is False
     assert sv["consequence"] == ["intron_variant"]
     # Riggs 2020 Table 1, 1B: no protein-coding content, -0.60
-    assert s["riggs"]["sections"][0] == {"section": "1B", "points": -0.6, "reason": s["riggs"]["sections"][0]["reason"]}
+    first = s["riggs"]["sections"][0]
+    assert (first["section"], first["points"]) == ("1B", -0.6)
 
 
 def test_apparently_homozygous_variant_inside_a_heterozygous_deletion_is_hemizygous_in_effect(tmp_path):
@@ -133,9 +132,11 @@ def test_apparently_homozygous_variant_inside_a_heterozygous_deletion_is_hemizyg
     assert "hemizygous in effect" in text and "loss of the other allele" in text
 
 
-def test_deletion_on_chrx_in_a_male_is_hemizygous(tmp_path):
+@pytest.mark.parametrize("call", ["1:.:.:60:0", "1/1:.:.:60:0"])
+def test_deletion_on_chrx_in_a_male_is_hemizygous(tmp_path, call):
+    # written haploid or as a diploid homozygous call: a male has one chrX copy outside the PARs
     vcf = write_vcf(tmp_path / "male.vcf", ["M1"], [
-        sv_record("chrX", 18650000, "<DEL>", "SVTYPE=DEL;END=18700000;SVLEN=-50000", ["1:.:.:60:0"]),
+        sv_record("chrX", 18650000, "<DEL>", "SVTYPE=DEL;END=18700000;SVLEN=-50000", [call]),
     ])
     r = triage(vcf, sex="male", hpo="HP:0000662")
     (sv,) = _structural(r, "RS1")
