@@ -141,6 +141,9 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--curated", metavar="FILE", help="curated evidence (PS3, BS3, PS4, PP5, BP6 ...) YAML/TSV")
     t.add_argument("--population-vcf", metavar="FILE", help="population-frequency VCF (bgzipped + tabix)")
     t.add_argument("--clinical-vcf", metavar="FILE", help="clinical-assertion VCF (bgzipped + tabix)")
+    t.add_argument("--sv-vcf", metavar="FILE",
+                   help="copy-number / structural-variant VCF of the same person (symbolic <DEL>, <DUP>, <CNV> ... "
+                        "records, or explicit alleles of 50 bp or more), read besides the main VCF")
     t.add_argument("--scores", metavar="FILE", action="append", default=[],
                    help="tabix-indexed score table with columns chrom, pos, ref, alt, score; the score is "
                         "named by the file (revel.tsv.gz) or as NAME=PATH (repeatable)")
@@ -416,7 +419,7 @@ def cmd_triage(args, argv) -> int:
         sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
         curated_path=args.curated, popfreq_vcf=args.population_vcf, clinical_vcf=args.clinical_vcf,
-        score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
+        sv_vcf=args.sv_vcf, score_tables=args.scores, quality=_quality(args), all_variants=args.all_variants,
         resources=args.resources, online=args.online, online_cache=args.online_cache,
         offline_replay=args.offline_replay, online_url=args.online_url, online_expire_days=args.cache_days,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
@@ -427,7 +430,8 @@ def cmd_triage(args, argv) -> int:
     inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
               ("rules", args.rules), ("curated evidence", args.curated),
               ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf),
-              ("reference FASTA", args.reference), ("transcript", args.transcripts)]
+              ("reference FASTA", args.reference), ("transcript", args.transcripts),
+              ("structural-variant VCF", args.sv_vcf)]
     inputs += [("score table", p.split("=", 1)[-1]) for p in args.scores]
     if args.resources and not os.path.isdir(args.resources):
         raise InputError("evidence bundle folder not found", args.resources)

@@ -358,6 +358,11 @@ def phase_between(a: Finding, b: Finding, proband: str, mother: Optional[str] = 
     ca, cb = _call(a, proband), _call(b, proband)
     if not carries(ca) or not carries(cb):
         return Phase("unknown", "the proband does not carry both alleles")
+    from .sv.pairing import trans_by_position  # a small variant inside a heterozygous deletion
+
+    by_position = trans_by_position(a, b, proband)
+    if by_position is not None:
+        return Phase(*by_position)
     if ca.alt_copies >= 2 or cb.alt_copies >= 2:
         return Phase("unknown", "one allele is homozygous, so phase between the two is not defined")
     if len(ca.gt) < 2 or len(cb.gt) < 2:
@@ -718,7 +723,9 @@ _PHASE_ORDER = {"trans": 0, "unknown": 1, "cis": 2}
 
 
 def _recessive(gene, alleles, mode, proband, mother, father, build, context, min_dp, min_gq) -> GenotypeAssessment:
-    notes: list[str] = []
+    from .sv.pairing import hemizygous_in_effect
+
+    alleles, notes = hemizygous_in_effect(alleles, proband)  # small variants inside a deletion: one copy
     homs = [(f, c) for f, c in alleles if c.alt_copies >= 2]
     hets = [(f, c) for f, c in alleles if c.alt_copies == 1]
     homs.sort(key=lambda fc: (_class(fc[0]) not in STRONG_CLASSES, fc[0].id))
@@ -727,6 +734,9 @@ def _recessive(gene, alleles, mode, proband, mother, father, build, context, min
         s = 2 if _class(f) in STRONG_CLASSES else 0
         a = GenotypeAssessment("homozygous", phase="homozygous", qualifying_ids=[f.id], mode=mode,
                                strong_alleles=s, candidate_alleles=2 - s)
+        if f.structural is not None:
+            a.notes = notes + [f"{f.id} is a homozygous {f.structural['type']}: both copies are affected"]
+            return a
         a.possible_deletion, why = _deletion_check(f, c, proband, mother, father, alleles, context, min_dp, min_gq)
         a.notes = notes + why
         return a
@@ -745,7 +755,8 @@ def _recessive(gene, alleles, mode, proband, mother, father, build, context, min
     if best is not None and best[3].phase != "cis":
         _, fa, fb, ph, s, k = best
         if ph.phase == "trans":
-            how = "parents" if ("mother" in ph.how or "father" in ph.how) else "phased genotypes"
+            how = ("inside the deletion" if "inside the deletion" in ph.how else
+                   "parents" if ("mother" in ph.how or "father" in ph.how) else "phased genotypes")
             fit, phase = "biallelic in trans", f"in trans ({how})"
         else:
             fit, phase = "biallelic phase unknown", "unknown"

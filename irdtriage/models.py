@@ -285,6 +285,8 @@ class Finding:
     # why a non-coding allele is reported (listed recurrent allele, or candidate non-coding allele
     # completing a genotype): irdtriage.noncoding.NoncodingNote, None for every other finding
     noncoding: Any = None
+    # a copy-number or structural event (irdtriage.sv.findings.StructuralNote), None for small variants
+    structural: Any = None
 
     @property
     def noncoding_candidate(self) -> bool:

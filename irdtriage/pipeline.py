@@ -43,6 +43,7 @@ class TriageOptions:
     curated_path: Optional[str] = None
     popfreq_vcf: Optional[str] = None
     clinical_vcf: Optional[str] = None
+    sv_vcf: Optional[str] = None  # a second VCF with the person's copy-number / structural calls (irdtriage.sv)
     score_tables: Sequence[str] = ()
     resources: Optional[str] = None  # evidence bundle folder (irdtriage.evidence.bundle)
     online: bool = False  # ask a public service for what local evidence lacks (coordinates only)
@@ -88,7 +89,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .consequence.annotations import pick_annotation
     from .evidence import EvidenceConfig, collect_evidence
     from .panel import GeneLocator, load_panel
-    from .vcf import QualityThresholds, quality_flags, read_vcf, structural_warnings
+    from .vcf import QualityThresholds, quality_flags, read_vcf
 
     started = _dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat().replace("+00:00", "Z")
     warnings: list[str] = list(opts.extra_warnings)
@@ -131,7 +132,6 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                       build=opts.build, padding=opts.padding, quality=quality,
                       unannotated_intervals=None if opts.all_variants else exon_intervals)
     warnings.extend(intake.warnings)
-    warnings.extend(structural_warnings(intake.structural_events))
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
     if opts.phenopacket:
@@ -180,10 +180,23 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         annotator = Annotator(opts.transcripts_path, opts.reference)
         warnings.append(annotator.describe() + ": used for records without CSQ/ANN")
         mane_ids = [a for g in panel.genes.values() for a in (g.refseq_transcript, g.ensembl_transcript) if a]
+    # copy-number and structural events (symbolic records, explicit alleles >= 50 bp): irdtriage.sv
+    from .sv.findings import make_findings
+
+    sv_findings, sv_warnings, sv_consumed = make_findings(
+        intake.structural_events, intake.variants, panel, intake.build, proband, sexes, vcf_path, locator.genes_at)
+    warnings.extend(sv_warnings)
+    if opts.sv_vcf:
+        from .sv.findings import from_second_vcf
+
+        more, more_warnings = from_second_vcf(opts.sv_vcf, panel, intake.build, proband, sexes, opts.padding,
+                                              locator.genes_at)
+        sv_findings += more
+        warnings.extend(more_warnings)
     findings: list[models.Finding] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)
-        if call is None or call.alt_copies == 0:
+        if call is None or call.alt_copies == 0 or id(variant) in sv_consumed:
             continue
         genes_here = locator.genes_at(variant.chrom, variant.pos, variant.pos + max(len(variant.ref), 1) - 1)
         if not genes_here:
@@ -210,6 +223,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         ))
     if annotator is not None:
         annotator.close()
+    findings.extend(sv_findings)
 
     # 6. evidence -------------------------------------------------------------------
     ev_config = EvidenceConfig().with_layouts(layouts)
@@ -222,7 +236,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         online_expire_days=opts.online_expire_days)
     try:
         for f in findings:
-            f.evidence = collect_evidence(f.variant, f.annotation, ev_config, sources)
+            if f.structural is None:  # structural events: no population or score data is read for them
+                f.evidence = collect_evidence(f.variant, f.annotation, ev_config, sources)
         evidence_sources, evidence_notes = assemble.finish(sources)
     finally:
         sources.close()
@@ -258,7 +273,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         gene = panel.genes[f.gene]
         base = automated.get(id(f))
         if base is None:
-            base = automated[id(f)] = acmg_engine.automated(f, gene, rules)
+            base = automated[id(f)] = (f.structural.automated if f.structural is not None
+                                       else acmg_engine.automated(f, gene, rules))
         f.criteria = acmg_engine.evaluate(f, gene, rules, extra=extra,
                                           curated=curated.get(f.variant.key, []), base=base)
         f.classification = combine(f.criteria, combining.for_gene(f.gene))
@@ -281,7 +297,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .rank import PHENOTYPE_FITS
 
     nc = select_noncoding(
-        findings, panel, proband, curated=curated, listed_table=load_noncoding_alleles(),
+        [f for f in findings if f.structural is None], panel, proband, curated=curated, listed_table=load_noncoding_alleles(),
         matches=matches, phenotype_given=matcher is not None,
         fits_retina=None if retinal is None else bool(retinal[0]), threshold=PHENOTYPE_FITS,
         mother=mother, father=father)
@@ -293,12 +309,13 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     if not opts.all_variants:
         kept = []
         for f in findings:
-            why = None if f.noncoding is not None else _not_reported(f, curated)
+            why = None if f.noncoding is not None or f.structural is not None else _not_reported(f, curated)
             if why is None:
                 kept.append(f)
             else:
                 counts_extra[why] += 1
         findings = kept
+    counts_extra["structural_findings"] = sum(1 for f in findings if f.structural is not None)
     counts_extra["noncoding_candidates_reported"] = sum(1 for f in findings if f.noncoding_candidate)
     counts_extra["noncoding_listed_reported"] = sum(1 for f in findings if f.noncoding is not None
                                                     and not f.noncoding_candidate)

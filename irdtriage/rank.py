@@ -368,6 +368,11 @@ def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[
         genes = ", ".join(dict.fromkeys(h.symbol for h in focus))
         steps.append(f"Confirm the reported {genes} finding(s) with an orthogonal method (e.g. Sanger sequencing) "
                      f"in an accredited laboratory before clinical use.")
+        sv = [f for h in focus for f in fit_findings(h) if getattr(f, "structural", None) is not None]
+        if sv:  # copy-number / structural events (irdtriage.sv)
+            steps.append("Confirm the copy-number or structural finding(s) " + ", ".join(
+                f"{f.gene} {f.annotation.hgvs_c or f.structural['type']}" for f in sv) + " by an orthogonal method "
+                "(MLPA, chromosomal microarray or long-read sequencing) and define the breakpoints.")
     carriers = [h for h in ranked if h.genotype_fit == "single heterozygous in a recessive gene" and _all_strong(h)
                 and h not in focus]
     if carriers:

@@ -134,6 +134,8 @@ def finding_dict(f: models.Finding, proband: str, relatives: dict[str, str],
         "interpretation_status": f.interpretation_status,
         "noncoding_candidate": f.noncoding_candidate,
         "noncoding": f.noncoding.to_dict() if f.noncoding is not None else None,
+        "kind": "structural" if f.structural is not None else "small",
+        "structural": _jsonable(f.structural.to_dict()) if f.structural is not None else None,
     }
 
 

@@ -92,7 +92,8 @@ class VcfIntake:
 
     structural_events: symbolic records (<DEL>, <DUP>, <INV>, <CNV>, breakends ...) in the
     panel regions, as plain dicts (chrom, pos, end, svtype, alt, genotype, zygosity, genes,
-    line): not classified by this version, listed so that they are reviewed.
+    line, alt_index, and as written: ref, id, qual, filters, info_text, samples with GT/CN): checked
+    and classified by irdtriage.sv; breakends are listed for review.
     """
 
     path: str
@@ -429,13 +430,23 @@ class _Converter:
             svtype = alt.strip("<>").split(":")[0] if alt.startswith("<") else "BND"
         genes = sorted({sym for c, s, e, sym in self.gene_intervals if c == cb and s <= end and e >= rec.pos})
         gt_text, zyg = "", "no call"
-        for s, gt, phased, *_ in per_sample:
+        samples = {}
+        for s, gt, phased, ps, dp, gq, _ad in per_sample:
+            rgt = tuple(None if a is None else (1 if a == alt_index else (0 if a == 0 else 2)) for a in gt)
+            try:
+                cn = rec.samples[s].get("CN") if "CN" in self.fmt else None
+            except (ValueError, OSError, KeyError):
+                cn = None
+            samples[s] = {"gt": rgt, "phased": phased, "phase_set": ps, "dp": dp, "gq": gq, "cn": cn}
             if s == self.proband:
-                rgt = tuple(None if a is None else (1 if a == alt_index else (0 if a == 0 else 2)) for a in gt)
                 gt_text, zyg = _gt_text(gt, phased), _zygosity(rgt, cb)
+        fields = str(rec).rstrip("\n").split("\t")
         self.events.append({
             "chrom": rec.chrom, "pos": rec.pos, "end": end, "svtype": str(svtype), "alt": alt,
-            "genotype": gt_text, "zygosity": zyg, "genes": genes, "line": line,
+            "genotype": gt_text, "zygosity": zyg, "genes": genes, "line": line, "alt_index": alt_index,
+            # as written, for irdtriage.sv.intake (htslib drops an END before POS, so INFO is kept as text)
+            "ref": rec.ref, "id": rec.id, "qual": rec.qual, "filters": tuple(rec.filter.keys()),
+            "info_text": fields[7] if len(fields) > 7 else "", "samples": samples,
         })
 
     def convert(self, rec: pysam.VariantRecord, counts: dict, line: Optional[int] = None) -> list[Variant]:

@@ -380,11 +380,12 @@ def test_symbolic_deletion_over_a_gene_is_listed_and_warned(tmp_path):
     out = tmp_path / "out"
     done = cli("triage", str(p), "--out", str(out), "--formats", "json", "--quiet")
     assert done.returncode == 0, done.stderr
-    warnings = json.loads((out / "result.json").read_text())["warnings"]
-    hit = [w for w in warnings if "<DEL>" in w]
-    assert len(hit) == 1
-    assert hit[0].startswith("homozygous") and f"chr1:{start}-{IN_RPE65}" in hit[0] and "RPE65" in hit[0]
-    assert "not classified" in hit[0] and "review" in hit[0]
+    result = json.loads((out / "result.json").read_text())
+    # the event is classified as a structural finding now (irdtriage.sv), no longer only a warning
+    assert not [w for w in result["warnings"] if "<DEL>" in w and "not classified" in w]
+    (sv,) = [f for f in result["findings"] if f["kind"] == "structural"]
+    assert sv["gene"] == "RPE65" and sv["zygosity"] == "homozygous"
+    assert (sv["structural"]["start"], sv["structural"]["end"]) == (start + 1, IN_RPE65)
 
 
 # ---------------------------------------------------------------------------

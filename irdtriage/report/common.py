@@ -248,3 +248,22 @@ def hgvs_pair(finding: dict, gene: Optional[dict] = None) -> tuple[Optional[str]
     c_expr = f"{tx}:{c}" if c and tx else None
     p_expr = f"{prot}:{p}" if p and prot and (c_expr or not c) else None
     return c_expr, p_expr
+
+
+def structural_facts(finding: dict) -> list[tuple[str, str]]:
+    """(label, text) lines for a copy-number/structural finding (``finding["structural"]``); [] for
+    a small variant.  Every writer shows the event, the Riggs 2020 points and the confirmation step."""
+    s = finding.get("structural") or {}
+    if not s:
+        return []
+    out = [("Structural event", s.get("summary") or f"{s.get('type')} {s.get('start')}-{s.get('end')}")]
+    if s.get("copy_number") is not None:
+        out.append(("Copy number", str(s["copy_number"])))
+    r = s.get("riggs") or {}
+    if r:
+        secs = "; ".join(f"{x['section']} {x['points']:+.2f}" for x in r.get("sections") or [] if x.get("points"))
+        out.append(("CNV points (Riggs 2020, second opinion)",
+                    f"{r.get('total', 0):+.2f} ({r.get('classification')})" + (f": {secs}" if secs else "")))
+    if s.get("next_step"):
+        out.append(("Next step", s["next_step"]))
+    return out

@@ -22,6 +22,7 @@ from . import svg
 from .common import (
     CLASS_SHORT,
     cautions,
+    structural_facts,
     criteria_compact,
     findings_by_id,
     fmt,
@@ -61,8 +62,10 @@ LIMITS = [
     "Not automated: functional studies (PS3/BS3), case-level and segregation evidence beyond the VCF "
     "family (PS4, PP1, BS4), reputable-source assertions (PP5/BP6, retired by ClinGen), and any "
     "evidence a reviewer supplies; these show as not evaluable unless given.",
-    "Only small variants in the panel genes are assessed; copy-number, structural and repeat variants, "
-    "deep-intronic and regulatory effects, mosaicism and variants outside the panel are not.",
+    "Small variants and copy-number or structural records (VCF symbolic alleles, or explicit alleles of 50 bp "
+    "or more) in the panel genes are assessed; repeat variants, breakends, deep-intronic and regulatory "
+    "effects, mosaicism and variants outside the panel are not. Copy-number and structural calls need "
+    "confirmation by an orthogonal method (MLPA, chromosomal microarray or long-read sequencing).",
     "Population data, in-silico scores and annotation come from the inputs named under Run details; "
     "their versions limit what this report can know.",
     "Phenotype match depends on the HPO terms supplied; missing or imprecise terms lower it.",
@@ -329,6 +332,7 @@ def _finding(f: dict) -> str:
         ("Rules / points / Bayes", f"{fmt(f.get('rule_class'))} ({fmt(f.get('rule'))}) / {fmt(f.get('point_class'))} / {fmt(f.get('bayes_class'))}"),
         ("Interpretation status", fmt(f.get("interpretation_status"))),
     ]
+    facts.extend(structural_facts(f))  # copy-number / structural events (irdtriage.sv)
     nc = f.get("noncoding") or {}
     if nc:
         head = "Candidate non-coding allele" if f.get("noncoding_candidate") else "Listed recurrent non-coding allele"

@@ -19,6 +19,7 @@ from .common import (
     affected_steps,
     cascade_steps as all_cascade_steps,
     cautions,
+    structural_facts,
     chain,
     criteria_compact,
     criterion_label,
@@ -244,6 +245,11 @@ def render_terminal(
             _ind(console, _finding_line(f), 4)
             for line in _noncoding_lines(f):
                 _ind(console, line, 6)
+            for label, text in structural_facts(f):  # copy-number / structural events
+                t = Text()
+                t.append(f"{label.lower()}: ", style=ST_MARK)
+                t.append(text)
+                _ind(console, t, 6)
             if verbose:
                 for line in _criteria_detail(f):
                     _ind(console, line, 8)

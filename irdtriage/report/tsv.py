@@ -34,6 +34,9 @@ COLUMNS = (
     "not_evaluable", "interpretation_status", "cascade_step",
     "cascade_step_id", "genotype_fit_id", "protein_accession", "ad", "phenotype_rank", "input_limits",
     "noncoding_candidate", "noncoding_reason", "noncoding_next_step",
+    "finding_kind", "structural_type", "structural_start", "structural_end", "copy_number", "structural_exons",
+    "structural_frame", "structural_nmd", "structural_summary", "cnv_points", "cnv_points_class",
+    "structural_next_step",
     "caution",
 )
 
@@ -87,7 +90,22 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "noncoding_candidate": "yes" if f.get("noncoding_candidate") else None,
             "noncoding_reason": (f.get("noncoding") or {}).get("reason"),
             "noncoding_next_step": (f.get("noncoding") or {}).get("next_step"),
+            **_structural_cells(f),
         }
+
+
+def _structural_cells(f: dict) -> dict:
+    """Columns of a copy-number/structural finding (irdtriage.sv); empty for small variants."""
+    s = f.get("structural") or {}
+    r = s.get("riggs") or {}
+    nmd = s.get("nmd")
+    return {
+        "finding_kind": f.get("kind"), "structural_type": s.get("type"), "structural_start": s.get("start"),
+        "structural_end": s.get("end"), "copy_number": s.get("copy_number"), "structural_exons": s.get("exons") or None,
+        "structural_frame": s.get("frame"), "structural_nmd": None if nmd is None else ("yes" if nmd else "no"),
+        "structural_summary": s.get("summary"), "cnv_points": r.get("total"),
+        "cnv_points_class": r.get("classification"), "structural_next_step": s.get("next_step"),
+    }
 
 
 def iter_tsv(result: dict, batch: int = 2000) -> Iterator[str]:

@@ -35,6 +35,9 @@ from .common import cautions, criterion_label, met_criteria
 INFO_FIELDS = [
     # id, Number, Type, Description
     ("IRDT_ID", "1", "String", "irdtriage finding id"),
+    # structural findings (VCF 4.3 section 3, reserved structural-variant keys)
+    ("END", "1", "Integer", "End position of the variant described in this record"),
+    ("SVTYPE", "1", "String", "Type of structural variant"),
     ("IRDT_GENE", "1", "String", "Panel gene symbol of the finding"),
     ("IRDT_TX", "1", "String", "Transcript used for HGVS"),
     ("IRDT_HGVSC", "1", "String", "HGVS coding expression (percent-encoded)"),
@@ -206,8 +209,13 @@ def write_vcf(result: dict, path: Union[str, Path], all_records: Optional[Iterab
         try:
             with pysam.VariantFile(str(plain), "wz", header=header) as out:
                 for rec, is_finding in rows:
-                    r = out.new_record(contig=rec["chrom"], start=int(rec["pos"]) - 1,
-                                       alleles=(rec["ref"], rec["alt"]))
+                    sv = rec.get("structural") or {}
+                    # a symbolic event is written as read: POS is the padding base, INFO END its last base
+                    pos = int((rec.get("original") or {}).get("pos") or rec["pos"]) if sv else int(rec["pos"])
+                    r = out.new_record(contig=rec["chrom"], start=pos - 1, alleles=(rec["ref"], rec["alt"]))
+                    if sv and str(rec["alt"]).startswith("<"):
+                        r.info["SVTYPE"] = str(sv.get("type"))
+                        r.stop = int(sv["end"])
                     if rec.get("vcf_id"):
                         r.id = str(rec["vcf_id"]).replace(";", ",").replace(" ", "_")
                     if rec.get("qual") is not None:
