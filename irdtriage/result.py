@@ -62,7 +62,7 @@ def allele_depths(call: Optional[models.Call]) -> Optional[list[Optional[int]]]:
 
 def protein_accession(annotation: models.Annotation, gene: Optional[models.Gene]) -> Optional[str]:
     """The protein reference that pairs with the annotation's transcript, so HGVS c. and p. are
-    written on one transcript/protein pair: the annotation's own ``ENSP`` (VEP CSQ field) for an
+    written on one transcript/protein pair: the annotation's own ``ENSP`` (CSQ field) for an
     Ensembl transcript; the gene's MANE Select RefSeq protein when the transcript is the gene's
     MANE Select RefSeq transcript (same version). None when no pair is known."""
     tx = annotation.transcript or ""

@@ -1,7 +1,7 @@
 """Disease mechanism per inheritance mode, through the real pipeline on VCFs written here.
 
 Each case is a heterozygous (or homozygous) predicted null allele in a gene whose modes differ in
-mechanism; the VCF carries a VEP-style CSQ with the EXON number, as annotators write it, and is
+mechanism; the VCF carries a CSQ field with the EXON number, as annotators write it, and is
 read by pysam through ``irdtriage.pipeline.triage``. Expected fits come from the sources named at
 each test (the gene-disease facts), from the ClinGen SVI PVS1 decision tree (Abou Tayoun et al., Hum
 Mutat 2018;39:1517-1524: PVS1 presumes loss of function is the disease mechanism; a stop in the

@@ -163,7 +163,7 @@ def _rpe65_result(transcript, protein_accession):
 
 
 @pytest.mark.parametrize("transcript, protein, want_c, want_p", [
-    # Ensembl transcript with its own ENSP (VEP CSQ): the Ensembl pair
+    # Ensembl transcript with its own ENSP (CSQ field): the Ensembl pair
     (RPE65["enst"], RPE65["ensp"], RPE65["enst"], RPE65["ensp"]),
     # the MANE Ensembl transcript without an ENSP: the MANE RefSeq pair (same sequence)
     (RPE65["enst"], None, RPE65["nm"], RPE65["np"]),

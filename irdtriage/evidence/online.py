@@ -14,8 +14,7 @@ Pieces:
   or timeout the client stops asking (the server is taken as unreachable for this run).
 * ``OnlineProvider``: the interface a source implements (``population``, ``clinical``,
   ``provenance``).
-* ``EnsemblVepRest``: the provider for Ensembl's REST API, region endpoint of the Variant
-  Effect Predictor, ``GET /vep/human/region/{chrom}:{start}-{end}:1/{allele}`` with
+* ``EnsemblRegionRest``: the provider for Ensembl's REST API, region consequence endpoint, ``GET /vep/human/region/{chrom}:{start}-{end}:1/{allele}`` with
   ``af_gnomade=1&af_gnomadg=1`` (documented at rest.ensembl.org/documentation/info/vep_region_get).
   Only the ``colocated_variants`` block of the answer is read: ``frequencies`` (allele ->
   ``gnomade``/``gnomadg`` and their ``_<group>`` keys) and ``clin_sig_allele``
@@ -270,8 +269,8 @@ def region_and_allele(chrom: str, pos: int, ref: str, alt: str) -> tuple[str, st
     return f"{c}:{p}-{p + len(r) - 1}:1", (a or "-")
 
 
-class EnsemblVepRest:
-    name = "Ensembl REST (VEP region endpoint)"
+class EnsemblRegionRest:
+    name = "Ensembl REST (region consequence endpoint)"
 
     def __init__(self, client: HttpClient, build: Optional[str]):
         self.client = client
@@ -389,7 +388,7 @@ def _number(v: Any) -> Optional[float]:
 def open_provider(build: Optional[str], *, url: Optional[str] = None, cache_path: Optional[str] = None,
                   expire_days: float = DEFAULT_EXPIRE_DAYS, offline_replay: bool = False,
                   timeout: float = DEFAULT_TIMEOUT, retries: int = DEFAULT_RETRIES,
-                  max_wait: float = DEFAULT_MAX_WAIT, min_interval: float = MIN_INTERVAL) -> EnsemblVepRest:
+                  max_wait: float = DEFAULT_MAX_WAIT, min_interval: float = MIN_INTERVAL) -> EnsemblRegionRest:
     """The online provider for this build (Ensembl's GRCh38 or GRCh37 server unless ``url``)."""
     if url is None:
         if build not in DEFAULT_SERVERS:
@@ -400,10 +399,10 @@ def open_provider(build: Optional[str], *, url: Optional[str] = None, cache_path
     client = HttpClient(url, cache_path or default_cache_path(), expire_days=expire_days,
                         offline_replay=offline_replay, timeout=timeout, retries=retries, max_wait=max_wait,
                         min_interval=min_interval)
-    return EnsemblVepRest(client, build)
+    return EnsemblRegionRest(client, build)
 
 
-def disclosure(provider: EnsemblVepRest) -> str:
+def disclosure(provider: EnsemblRegionRest) -> str:
     """The run's statement of what left the machine (a warning every output shows)."""
     c = provider.client
     if c.offline_replay:
