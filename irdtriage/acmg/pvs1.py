@@ -112,21 +112,9 @@ def _structure(variant: Optional[Variant], build: Optional[str], gene: Gene,
 def _model_hit(variant: Optional[Variant], build: Optional[str], gene: Gene,
                model: Optional[TranscriptModel]) -> tuple[Optional[object], str]:
     """Exon hit of the variant's 3'-most base on the curated transcript model, or (None, why not)."""
-    if variant is None:
-        return None, "no variant position"
-    if not build:
-        return None, "genome build not known to the criterion engine"
-    m, why = _load(model)
-    if m is None:
-        return None, why
-    tx = m.get(gene.symbol, build)
-    coding = m.coding_for(gene.symbol)
-    if tx is None and coding is not None and build == "GRCh38":
-        tx = coding.transcript_model()
+    tx, why = _structure(variant, build, gene, model)
     if tx is None:
-        return None, f"no curated transcript model for {gene.symbol} on {build}"
-    if tx.chrom != variant.chrom_bare:
-        return None, f"variant on chromosome {variant.chrom_bare}, transcript model on {tx.chrom}"
+        return None, why
     end = variant.pos + max(len(variant.ref), 1) - 1
     pos3 = end if tx.strand == "+" else variant.pos
     hit = locate_in(tx, pos3)
