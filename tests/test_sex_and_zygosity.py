@@ -22,10 +22,10 @@ import subprocess
 import sys
 from pathlib import Path
 
-import pysam
 import pytest
 
 from irdtriage.pipeline import triage
+from vcf_builder import write_csq_vcf
 
 ROOT = Path(__file__).resolve().parents[1]
 CSQ = ("Allele|Consequence|IMPACT|SYMBOL|Gene|Feature_type|Feature|BIOTYPE|EXON|INTRON|HGVSc|HGVSp|"
@@ -43,30 +43,7 @@ RPE65_MISSENSE = csq("A", "RPE65", "missense_variant", "5/14", "c.400C>T", "p.(A
 
 
 def write_vcf(path: Path, samples: list[str], records: list[tuple], index: bool = True) -> str:
-    lines = [
-        "##fileformat=VCFv4.2",
-        "##reference=GRCh38",
-        "##contig=<ID=chr1,length=248956422>",
-        "##contig=<ID=chrX,length=156040895>",
-        "##contig=<ID=chrY,length=57227415>",
-        "##contig=<ID=chrM,length=16569>",
-        '##FILTER=<ID=PASS,Description="All filters passed">',
-        f'##INFO=<ID=CSQ,Number=.,Type=String,Description="Consequence annotations. Format: {CSQ}">',
-        '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">',
-        '##FORMAT=<ID=AD,Number=R,Type=Integer,Description="Allelic depths">',
-        '##FORMAT=<ID=DP,Number=1,Type=Integer,Description="Depth">',
-        '##FORMAT=<ID=GQ,Number=1,Type=Integer,Description="Genotype quality">',
-        "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\t" + "\t".join(samples),
-    ]
-    for chrom, pos, ref, alt, ann, calls in records:
-        info = f"CSQ={ann}" if ann else "."
-        lines.append("\t".join([chrom, str(pos), ".", ref, alt, "500", "PASS", info, "GT:AD:DP:GQ", *calls]))
-    plain = path.with_suffix("")
-    plain.write_text("\n".join(lines) + "\n")
-    if not index:
-        return str(plain)
-    pysam.tabix_index(str(plain), preset="vcf", force=True)
-    return str(plain) + ".gz"
+    return write_csq_vcf(path, samples, records, CSQ, index=index)
 
 
 def run_cli(*args: str) -> subprocess.CompletedProcess:

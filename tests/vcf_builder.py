@@ -20,9 +20,10 @@ GRCH38_CONTIGS = {
 
 
 def write_csq_vcf(path: Path, samples: list[str], records: Iterable[tuple], csq_format: str,
-                  contigs: Optional[dict[str, int]] = None) -> str:
+                  contigs: Optional[dict[str, int]] = None, index: bool = True) -> str:
     """Write ``records`` (chrom, pos, ref, alt, csq-or-empty, [GT:AD:DP:GQ per sample]) under a
-    header declaring ``csq_format``; returns the path of the bgzipped, indexed file."""
+    header declaring ``csq_format``; returns the path of the bgzipped, indexed file (or of the
+    plain file when ``index`` is false)."""
     lines = ["##fileformat=VCFv4.2", "##reference=GRCh38"]
     lines += [f"##contig=<ID={c},length={n}>" for c, n in (contigs or GRCH38_CONTIGS).items()]
     lines += [
@@ -39,5 +40,7 @@ def write_csq_vcf(path: Path, samples: list[str], records: Iterable[tuple], csq_
         lines.append("\t".join([chrom, str(pos), ".", ref, alt, "500", "PASS", info, "GT:AD:DP:GQ", *calls]))
     plain = Path(path).with_suffix("") if str(path).endswith(".gz") else Path(path)
     plain.write_text("\n".join(lines) + "\n")
+    if not index:
+        return str(plain)
     pysam.tabix_index(str(plain), preset="vcf", force=True)
     return str(plain) + ".gz"
