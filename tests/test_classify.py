@@ -16,9 +16,10 @@ import sys
 from pathlib import Path
 
 import pytest
+import yaml
 
 from irdtriage import CAUTION
-from irdtriage.acmg.rulesets import load_combining
+from irdtriage.acmg.rulesets import load_combining, parse_combining
 from irdtriage.classify import parse_criteria
 from irdtriage.errors import InputError
 
@@ -154,10 +155,16 @@ def test_bundled_file_loads_and_hashes():
     assert comb.for_gene("USH2A").name == comb.for_gene("myo7a").name == "clingen-hearing-loss-v2"
     assert comb.for_gene("RHO").name == comb.default == "acmg-2015-svi"
     rs = comb.rule_sets
-    # the hash covers what decides a class: the same rules hash alike whatever the name, other rules differ
-    assert rs["clingen-lca-eord-rpe65-v1"].sha256 == rs["acmg-2015-svi"].sha256
-    assert len({rs[n].sha256 for n in ("acmg-2015-svi", "clingen-svi-general", "tavtigian-2020-points",
-                                       "tavtigian-2018-bayes")}) == 4
+    # each rule set has its own hash over its resolved content (name, version, source, table, rules):
+    # two rule sets with the same rules still differ, and editing one rule set changes only its hash
+    assert rs["clingen-lca-eord-rpe65-v1"].rules == rs["acmg-2015-svi"].rules
+    assert rs["clingen-lca-eord-rpe65-v1"].sha256 != rs["acmg-2015-svi"].sha256
+    assert len({r.sha256 for r in rs.values()}) == len(rs) and comb.sha256 not in {r.sha256 for r in rs.values()}
+    text = (ROOT / "panels" / "combining.yaml").read_text()
+    edited = parse_combining(text.replace("conflict: points", "conflict: uncertain", 1).encode(), None,
+                             yaml.safe_load(text.replace("conflict: points", "conflict: uncertain", 1)), "x.yaml")
+    assert edited.rule_sets["clingen-svi-general"].sha256 != rs["clingen-svi-general"].sha256
+    assert edited.rule_sets["acmg-2015-svi"].sha256 == rs["acmg-2015-svi"].sha256
 
 
 @pytest.mark.parametrize("old,new,msg", [

@@ -51,7 +51,7 @@ class RuleSet:
     method: str  # "table", "points" or "bayes"
     rules: tuple[Rule, ...] = ()  # table rules then the rule set's own, in file order
     conflict: str = "uncertain"
-    sha256: str = ""  # hash of the resolved content (what decides a class)
+    sha256: str = ""  # SHA-256 of the resolved content (rule set text, table used, every rule)
 
     def ref(self) -> dict[str, str]:
         """Name, version and content hash: what a result records about the rule set used."""
@@ -155,7 +155,11 @@ def parse_combining(raw_bytes: bytes, node, data, path: str) -> Combining:
         if method not in METHODS:
             ck.fail(where + ("method",), f"method must be one of {', '.join(METHODS)}, got {method!r}")
         rules: list[Rule] = []
-        content: dict[str, Any] = {"method": method}
+        # Canonical content of the resolved rule set (its own text, the table it uses with that
+        # table's source, every rule): its SHA-256 identifies this rule set on its own, so two rule
+        # sets with the same rules still carry different hashes, and editing one leaves the others'.
+        content: dict[str, Any] = {"name": name, "title": rs["title"].strip(), "version": str(rs["version"]).strip(),
+                                   "source": " ".join(rs["source"].split()), "method": method}
         conflict = rs.get("conflict", "uncertain")
         if method == "table":
             if rs.get("table") not in tables:
@@ -168,7 +172,8 @@ def parse_combining(raw_bytes: bytes, node, data, path: str) -> Combining:
             if not isinstance(extra, list):
                 ck.fail(where + ("extra_rules",), "extra_rules must be a list of rules")
             rules += [_rule(ck, r, where + ("extra_rules", i)) for i, r in enumerate(extra)]
-            content.update(conflict=conflict, rules=[[r.cls, r.label, r.need, r.codes] for r in rules])
+            content.update(conflict=conflict, table={"name": rs["table"], "source": " ".join(tables[rs["table"]][1]["source"].split())},
+                           rules=[[r.cls, r.label, r.need, r.codes] for r in rules])
         else:
             for key in ("table", "extra_rules", "conflict"):
                 if key in rs:

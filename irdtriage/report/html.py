@@ -148,6 +148,16 @@ def _caution_box(result: dict) -> str:
             + (f"<ul>{more}</ul>" if more else "") + "</div>")
 
 
+def _combining_text(rules: dict) -> str:
+    """The combining rule sets the findings used: name, version and short content hash of each."""
+    comb = rules.get("combining") or {}
+    used = comb.get("rule_sets") or []
+    if not used and comb.get("default"):
+        d = comb["default"]
+        return f"{fmt(d.get('name'))} {fmt(d.get('version'))} sha256:{(d.get('sha256') or '')[:12]} (default; no finding classified)"
+    return "; ".join(f"{fmt(u.get('name'))} {fmt(u.get('version'))} sha256:{(u.get('sha256') or '')[:12]}" for u in used) or "—"
+
+
 def _meta(result: dict) -> str:
     s = result.get("sample") or {}
     p = result.get("panel") or {}
@@ -163,7 +173,8 @@ def _meta(result: dict) -> str:
         ("Parents", f"mother {fmt(s.get('mother'))}, father {fmt(s.get('father'))}"),
         ("Genome build", result.get("genome_build")),
         ("Panel", f"{fmt(p.get('name'))} {fmt(p.get('version'))} ({fmt(p.get('genes'))} genes)"),
-        ("Rule set", f"{fmt(r.get('name'))} {fmt(r.get('version'))}"),
+        ("Criteria", f"{fmt(r.get('name'))} {fmt(r.get('version'))}"),
+        ("Combining rule sets", _combining_text(r)),
         ("Run started", run.get("started")),
     ]
     return ('<dl class="meta">' + "".join(f"<dt>{e(k)}</dt><dd>{e(fmt(v))}</dd>" for k, v in items) + "</dl>"
@@ -178,7 +189,8 @@ def _run_details(result: dict) -> str:
     run = result.get("run") or {}
     items = [
         ("Tool", f"{fmt(t.get('name'))} {fmt(t.get('version'))}"),
-        ("Panel sha256", p.get("sha256")), ("Rule set sha256", r.get("sha256")),
+        ("Panel sha256", p.get("sha256")), ("Criteria sha256", r.get("sha256")),
+        ("Combining rules file sha256", (r.get("combining") or {}).get("sha256")),
         ("Command", run.get("command")),
     ]
     for inp in run.get("inputs") or []:

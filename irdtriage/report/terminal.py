@@ -73,6 +73,16 @@ def _case_line(result: dict) -> Text:
     return t
 
 
+def _rule_set_line(result: dict) -> Optional[Text]:
+    """Combining rule set(s) the findings used: name, version and short content hash."""
+    used = (((result.get("rules") or {}).get("combining")) or {}).get("rule_sets") or []
+    if not used:
+        return None
+    return Text("combining rule set" + ("s" if len(used) > 1 else "") + ": " + "; ".join(
+        f"{fmt(u.get('name'))} {fmt(u.get('version'))} sha256:{(u.get('sha256') or '')[:12]}" for u in used),
+        style=ST_DIM)
+
+
 def _gene_line(g: dict) -> Text:
     pm = g.get("phenotype_match") or {}
     t = Text()
@@ -228,6 +238,8 @@ def render_terminal(
             p(Text("no gene hypothesis"))
         _ind(console, Text("CAUTION: " + cautions(result)[0], style=ST_CAUTION), hang=0)
         return
+    if _rule_set_line(result) is not None:
+        _ind(console, _rule_set_line(result), hang=2)
     _ind(console, Text(strip_provenance(case.get("summary"))), hang=0)
     p()
     p(Text("Gene hypotheses (ranked)", style=ST_HEAD))

@@ -36,7 +36,7 @@ COLUMNS = (
     "noncoding_candidate", "noncoding_reason", "noncoding_next_step",
     "finding_kind", "structural_type", "structural_start", "structural_end", "copy_number", "structural_exons",
     "structural_frame", "structural_nmd", "structural_summary", "cnv_points", "cnv_points_class",
-    "structural_next_step",
+    "structural_next_step", "rule_set",
     "caution",
 )
 
@@ -91,6 +91,7 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "noncoding_reason": (f.get("noncoding") or {}).get("reason"),
             "noncoding_next_step": (f.get("noncoding") or {}).get("next_step"),
             **_structural_cells(f),
+            "rule_set": f.get("rule_set"),  # the combining rule set that gave the class (panels/combining.yaml)
         }
 
 

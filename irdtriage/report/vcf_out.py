@@ -45,6 +45,7 @@ INFO_FIELDS = [
     ("IRDT_CSQ", ".", "String", "Sequence Ontology consequence terms, most severe first"),
     ("IRDT_CLASS", "1", "String", "ACMG/AMP classification (percent-encoded, e.g. Likely%20pathogenic)"),
     ("IRDT_CRIT", ".", "String", "Met ACMG/AMP criteria; strength in parentheses when not the default (Sup Mod Str VStr SA)"),
+    ("IRDT_RULESET", "1", "String", "Combining rule set that gave IRDT_CLASS (an ##irdtriage_combining ID)"),
     ("IRDT_POINTS", "1", "Integer", "Sum of criterion points (Tavtigian et al. 2020 scale)"),
     ("IRDT_POST", "1", "Float", "Posterior probability of pathogenicity (Tavtigian et al. 2018 model)"),
     ("IRDT_FIT", "1", "String", "Genotype fit of the finding's gene hypothesis (percent-encoded)"),
@@ -137,6 +138,9 @@ def build_header(result: dict, contigs: Iterable[str]) -> pysam.VariantHeader:
     rules = result.get("rules") or {}
     h.add_line(f"##irdtriage_panel={_header_text(panel.get('name'))} {_header_text(panel.get('version'))} sha256:{_header_text(panel.get('sha256'))}")
     h.add_line(f"##irdtriage_rules={_header_text(rules.get('name'))} {_header_text(rules.get('version'))} sha256:{_header_text(rules.get('sha256'))}")
+    for rs in (rules.get("combining") or {}).get("rule_sets") or []:  # each combining rule set the findings used
+        h.add_line(f'##irdtriage_combining=<ID={_header_text(rs.get("name"))},Version="{_header_text(rs.get("version"))}",'
+                   f'SHA256={_header_text(rs.get("sha256"))}>')
     case = result.get("case") or {}
     h.add_line(f"##irdtriage_case_status={_header_text(case.get('status'))}")
     for c in cautions(result):
@@ -259,6 +263,8 @@ def _annotate(r, f: dict, gene: Optional[dict]) -> None:
         info["IRDT_CSQ"] = tuple(encode(c) for c in f["consequence"])
     if f.get("classification"):
         info["IRDT_CLASS"] = encode(f["classification"])
+    if f.get("rule_set"):
+        info["IRDT_RULESET"] = encode(f["rule_set"])
     met = met_criteria(f)
     if met:
         info["IRDT_CRIT"] = tuple(encode(criterion_label(c)) for c in met)
