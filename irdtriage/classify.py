@@ -138,7 +138,8 @@ def classify_tsv(src: TextIO, path: str, combining: Combining, gene: Optional[st
                  rule_set: Optional[str] = None) -> str:
     """Rows of a tab-separated file with a ``criteria_met`` column (and ``gene`` when present),
     returned as TSV text with class, rule_set, rule, points and posterior added, and the caution as
-    the last column."""
+    the last column.  The rule set of a row: a non-empty ``rule_set`` cell of that row, else
+    ``rule_set`` (the --rule-set option), else the row's gene's rule set, else the default."""
     reader = csv.reader(src, delimiter="\t")
     try:
         header = next(reader)
@@ -150,6 +151,7 @@ def classify_tsv(src: TextIO, path: str, combining: Combining, gene: Optional[st
         raise InputError("header has no criteria_met column", path, 1)
     ci = header.index("criteria_met")
     gi = header.index("gene") if "gene" in header else None
+    ri = header.index("rule_set") if "rule_set" in header else None  # a row may name its own rule set
     fixed = combining.get(rule_set) if rule_set else None
     added = [c for c in TSV_COLUMNS if c not in header]
     out = io.StringIO()
@@ -163,7 +165,13 @@ def classify_tsv(src: TextIO, path: str, combining: Combining, gene: Optional[st
                 continue
             if len(row) != len(header):
                 raise InputError(f"row has {len(row)} fields, the header has {len(header)}", path, line)
-            rs = fixed or combining.for_gene(row[gi] if gi is not None and row[gi].strip() else gene)
+            if ri is not None and row[ri].strip():
+                if row[ri].strip() not in combining.rule_sets:
+                    raise InputError(f"unknown rule set {row[ri].strip()!r}; choose from {', '.join(combining.rule_sets)}",
+                                     path, line)
+                rs = combining.rule_sets[row[ri].strip()]
+            else:
+                rs = fixed or combining.for_gene(row[gi] if gi is not None and row[gi].strip() else gene)
             res = classify(parse_criteria(row[ci], path, line), rs)
             values = {"class": res["class"], "rule_set": rs.name, "rule": res["rule"], "points": str(res["points"]),
                       "posterior": f"{res['posterior']:.6f}"}

@@ -201,3 +201,36 @@ def test_demo_result_records_the_rule_sets(tmp_path):
     assert comb["default"]["name"] == "acmg-2015-svi"
     used = {f["rule_set"] for f in res["findings"]}
     assert used and used == {r["name"] for r in comb["rule_sets"]}
+
+
+def test_tsv_row_names_its_rule_set(tmp_path):
+    # a non-empty rule_set cell decides that row; an empty one falls back to the gene's rule set
+    src = tmp_path / "rows.tsv"
+    src.write_text("gene\tcriteria_met\trule_set\n"
+                   "PAH\tPM2, BS1\tclingen-svi-general\n"
+                   "RPE65\tPM2, BS1\t\n", encoding="utf-8")
+    p = run("--tsv", str(src))
+    assert p.returncode == 0, p.stderr
+    rows = list(csv.DictReader(io.StringIO(p.stdout), delimiter="\t"))
+    assert list(rows[0]) == ["gene", "criteria_met", "rule_set", "class", "rule", "points", "posterior", "caution"]
+    assert [r["rule_set"] for r in rows] == ["clingen-svi-general", "clingen-lca-eord-rpe65-v1"]
+    # 2 - 4 = -2 points netted (Tavtigian 2020 Table 3: Likely benign); Table 5 VUS (ii) for RPE65
+    assert [r["class"] for r in rows] == ["Likely benign", "Uncertain significance"]
+    bad = tmp_path / "bad.tsv"
+    bad.write_text("gene\tcriteria_met\trule_set\nPAH\tPVS1\tno-such-set\n", encoding="utf-8")
+    p = run("--tsv", str(bad))
+    assert p.returncode == 2 and f"{bad}:2: unknown rule set 'no-such-set'" in p.stderr
+
+
+def test_hearing_loss_bs1_alone_is_likely_benign():
+    # ClinGen Hearing Loss ACMG Specifications v1 (2018), BS1: "Likely benign, provided there is no
+    # conflicting evidence" (as shown on the ClinGen Evidence Repository guideline page).
+    p = run("BS1", "--gene", "USH2A")
+    assert field(p.stdout, "Class") == "Likely benign"
+    assert "BS1 with no conflicting evidence" in field(p.stdout, "Rule")
+    p = run("BS1, PM2_Supporting", "--gene", "USH2A")  # conflicting evidence: Table 5 VUS (ii)
+    assert field(p.stdout, "Class") == "Uncertain significance"
+    p = run("BS1", "--gene", "RPE65")  # Table 5: one Strong benign alone reaches no rule
+    assert field(p.stdout, "Class") == "Uncertain significance"
+    p = run("PVS1, PS2_Very Strong", "--gene", "MYO7A")  # PS2_VeryStrong graded in the HL specification v1
+    assert field(p.stdout, "Class") == "Pathogenic"
