@@ -86,6 +86,14 @@ def get_ontology():
     return _ONTOLOGY
 
 
+def null_draws(pool_size: int, size: int) -> np.ndarray:
+    """The null's random term sets: NULL_SAMPLES rows of ``min(size, pool_size)`` distinct pool
+    positions, drawn with the fixed seed ``NULL_SEED + size`` (deterministic)."""
+    rng = np.random.default_rng(NULL_SEED + size)
+    k = min(size, pool_size)
+    return np.stack([rng.choice(pool_size, size=k, replace=False) for _ in range(NULL_SAMPLES)])
+
+
 def _model():
     from irdtriage.phenotype_model import get_model
 
@@ -189,9 +197,9 @@ class PhenotypeMatcher:
         """
         if size not in self._null:
             pool = self._pool()
-            rng = np.random.default_rng(NULL_SEED + size)
-            k = min(size, pool.shape[1])
-            idx = np.stack([rng.choice(pool.shape[1], size=k, replace=False) for _ in range(NULL_SAMPLES)])
+            idx = self.model.null_draws(size) if self.model is not None else None
+            if idx is None or idx.shape[1] != min(size, pool.shape[1]):
+                idx = null_draws(pool.shape[1], size)
             # genes x N, in chunks to bound memory (genes x chunk x size floats)
             scores = np.concatenate(
                 [pool[:, idx[i : i + 100]].mean(axis=2) for i in range(0, NULL_SAMPLES, 100)], axis=1

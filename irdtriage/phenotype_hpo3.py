@@ -27,11 +27,13 @@ class Hpo3PhenotypeMatcher(PhenotypeMatcher):
     def __init__(self, panel_genes: Iterable[str]):
         ont = get_ontology()
         wanted = list(dict.fromkeys(panel_genes))
-        by_name = {g.name: g for g in ont.genes}
+        by_name: dict[str, set[int]] = {}
+        for g in ont.genes:  # direct annotations of every gene with the symbol (as the model)
+            by_name.setdefault(g.name, set()).update(int(h) for h in g.hpo)
         self.model = None
         self.genes = wanted
         self.unannotated = [s for s in wanted if s not in by_name]
-        self._gene_terms = [frozenset(by_name[s].hpo) if s in by_name else frozenset() for s in wanted]
+        self._gene_terms = [frozenset(by_name.get(s, ())) for s in wanted]
         self._init_caches()
 
     def term_info(self, tid: str) -> _TermInfo:

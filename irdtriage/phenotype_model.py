@@ -37,14 +37,17 @@ from typing import Optional, Union
 
 import numpy as np
 
-FORMAT = 1
+FORMAT = 2
 EYE_ROOT = "HP:0000478"  # Abnormality of the eye: the null pool (see irdtriage.phenotype)
 SHIPPED = Path(__file__).with_name("data") / "phenotype_model.npz"
 _ID = re.compile(r"^HP:(\d+)$")
 
 # array names in the file (all plain numeric or byte arrays)
 _ARRAYS = ("meta", "term_num", "name_blob", "name_off", "ic", "anc_ptr", "anc_idx", "obsolete", "replaced_by",
-           "gene_blob", "gene_off", "direct_ptr", "direct_idx", "prop_ptr", "prop_idx", "pool")
+           "gene_blob", "gene_off", "direct_ptr", "direct_idx", "prop_ptr", "prop_idx", "pool", "null_draws")
+# The null's random draws for query sizes 1..NULL_DRAW_SIZES are stored (they depend only on the
+# pool size and the fixed seed); larger queries draw them at run time.
+NULL_DRAW_SIZES = 12
 
 
 def hpo3_version() -> str:
@@ -96,19 +99,27 @@ def build_arrays() -> dict[str, np.ndarray]:
     for t in terms:
         r = t.replaced_by if t.is_obsolete else None
         repl.append(int(r[3:]) if r else -1)
-    # Genes by symbol, as the matcher looks them up: direct annotations from the last gene of a
-    # symbol (dict semantics), propagated annotations from every term's gene set (term.genes).
-    by_name = {g.name: g for g in Ontology.genes}
+    # Genes by symbol, as the matcher looks them up: direct annotations of every gene with the
+    # symbol (hpo3 has a few genes without a symbol, all named "-"; their order in hpo3 is not
+    # fixed, so the union keeps the model deterministic), propagated annotations from every
+    # term's gene set (term.genes).
+    by_name: dict[str, set[int]] = {}
+    for g in Ontology.genes:
+        by_name.setdefault(g.name, set()).update(int(h) for h in g.hpo)
     names = sorted(by_name)
     gidx = {s: i for i, s in enumerate(names)}
     prop: list[set[int]] = [set() for _ in names]
     for i, t in enumerate(terms):
         for g in t.genes:
             prop[gidx[g.name]].add(i)
-    direct = [sorted(index[f"HP:{int(h):07d}"] for h in by_name[s].hpo) for s in names]
+    direct = [sorted(index[f"HP:{h:07d}"] for h in by_name[s]) for s in names]
     eye = Ontology.get_hpo_object(EYE_ROOT)
     pool = sorted(t.id for t in terms if (not t.is_obsolete) and t.omim_diseases and (t == eye or t.child_of(eye)))
+    from .phenotype import NULL_SAMPLES, NULL_SEED, null_draws
+
+    draws = [null_draws(len(pool), k).astype(np.int16) for k in range(1, NULL_DRAW_SIZES + 1)]
     meta = {"format": FORMAT, "hpo_release": str(Ontology.version()),
+            "null_samples": NULL_SAMPLES, "null_seed": NULL_SEED, "null_draw_sizes": NULL_DRAW_SIZES,
             "hpo3_version": hpo3_version() or getattr(pyhpo, "__version__", ""),
             "source": "HPO ontology, information content (omim) and gene annotations as shipped in hpo3"}
     name_blob, name_off = _blob([t.name for t in terms])
@@ -130,6 +141,7 @@ def build_arrays() -> dict[str, np.ndarray]:
         "direct_ptr": direct_ptr, "direct_idx": direct_idx,
         "prop_ptr": prop_ptr, "prop_idx": prop_idx,
         "pool": np.array([index[p] for p in pool], dtype=np.int32),
+        "null_draws": np.concatenate([d.ravel() for d in draws]),
     }
 
 
@@ -214,6 +226,20 @@ class PhenotypeModel:
     def replaced_by(self, i: int) -> Optional[str]:
         r = int(self.arrays["replaced_by"][i])
         return None if r < 0 else f"HP:{r:07d}"
+
+    def null_draws(self, size: int) -> Optional[np.ndarray]:
+        """Stored null draws for a query of ``size`` terms (see irdtriage.phenotype.null_draws),
+        or None when not stored or drawn with other settings than the matcher's."""
+        from .phenotype import NULL_SAMPLES, NULL_SEED
+
+        meta = self.meta
+        n = meta.get("null_draw_sizes", 0)
+        if not 1 <= size <= n or meta.get("null_samples") != NULL_SAMPLES or meta.get("null_seed") != NULL_SEED:
+            return None
+        k = min(size, self.pool.size)
+        start = NULL_SAMPLES * sum(min(j, self.pool.size) for j in range(1, size))
+        flat = self.arrays["null_draws"][start:start + NULL_SAMPLES * k]
+        return flat.reshape(NULL_SAMPLES, k).astype(np.int64)
 
     # ---- genes ------------------------------------------------------------------------
     @cached_property

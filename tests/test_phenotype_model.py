@@ -125,3 +125,19 @@ def test_phenopacket_store_cases(pair):
         _same(model_m, ref_m, prof)
         compared += 1
     assert compared > 100
+
+
+def test_built_on_first_use_into_the_user_cache(tmp_path, monkeypatch):
+    # Without a usable shipped file the model is built from the installed hpo3 into
+    # $IRDTRIAGE_CACHE (written atomically: no partial file left) and read from there next time.
+    import irdtriage.phenotype_model as pm
+
+    monkeypatch.setattr(pm, "SHIPPED", tmp_path / "absent.npz")
+    monkeypatch.setenv("IRDTRIAGE_CACHE", str(tmp_path / "cache"))
+    built = pm._locate()
+    files = sorted(p.name for p in (tmp_path / "cache").iterdir())
+    assert files == [f"phenotype_model-hpo3-{hpo3_version()}-f{pm.FORMAT}.npz"]
+    again = pm._locate()
+    shipped = PhenotypeModel.load(SHIPPED)
+    for k in shipped.arrays:
+        assert np.array_equal(built.arrays[k], shipped.arrays[k]) and np.array_equal(again.arrays[k], built.arrays[k])
