@@ -186,7 +186,11 @@ class PhenotypeMatcher:
         if self._pool_best is None:
             m = self.model
             self.pool_terms = [m.term_id(i) for i in m.pool]
-            self._pool_best = np.column_stack([self._best_rows(self._lineage_rows(i))[0] for i in m.pool])
+            stored = m.stored_pool_best(self.genes)
+            if stored is not None:
+                self._pool_best = stored
+            else:
+                self._pool_best = np.column_stack([self._best_rows(self._lineage_rows(i))[0] for i in m.pool])
         return self._pool_best
 
     def null(self, size: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:

@@ -5,8 +5,10 @@ matcher, term resolution, labels and the retinal-fit check only need, for every 
 ID, name, information content (``omim``, as used by :mod:`irdtriage.phenotype`), its
 ancestors-or-self, whether it is obsolete and its replacement; for every gene its annotated
 terms (directly, and propagated to ancestors as ``hpo3`` does); and the pool of eye terms the
-null calibration draws from. :func:`build` extracts exactly that from the installed ``hpo3``
-into one NumPy ``.npz`` file (plain arrays, uncompressed so it loads in milliseconds, read with ``allow_pickle=False``; about 4 MB).
+null calibration draws from, with its random draws for small queries and, for the bundled
+panel's genes, the pool's best-IC matrix (the null's one expensive step). :func:`build`
+extracts exactly that from the installed ``hpo3`` into one NumPy ``.npz`` file (plain arrays,
+uncompressed so it loads in milliseconds, read with ``allow_pickle=False``; about 4.8 MB).
 
 Where the model comes from (:func:`get_model`):
 
@@ -37,14 +39,15 @@ from typing import Optional, Union
 
 import numpy as np
 
-FORMAT = 2
+FORMAT = 3
 EYE_ROOT = "HP:0000478"  # Abnormality of the eye: the null pool (see irdtriage.phenotype)
 SHIPPED = Path(__file__).with_name("data") / "phenotype_model.npz"
 _ID = re.compile(r"^HP:(\d+)$")
 
 # array names in the file (all plain numeric or byte arrays)
 _ARRAYS = ("meta", "term_num", "name_blob", "name_off", "ic", "anc_ptr", "anc_idx", "obsolete", "replaced_by",
-           "gene_blob", "gene_off", "direct_ptr", "direct_idx", "prop_ptr", "prop_idx", "pool", "null_draws")
+           "gene_blob", "gene_off", "direct_ptr", "direct_idx", "prop_ptr", "prop_idx", "pool", "null_draws",
+           "panel_blob", "panel_off", "pool_best_ic", "pool_best_code")
 # The null's random draws for query sizes 1..NULL_DRAW_SIZES are stored (they depend only on the
 # pool size and the fixed seed); larger queries draw them at run time.
 NULL_DRAW_SIZES = 12
@@ -68,7 +71,7 @@ def cache_dir() -> Path:
 
 def _blob(strings: list[str]) -> tuple[np.ndarray, np.ndarray]:
     enc = [s.encode("utf-8") for s in strings]
-    off = np.zeros(len(enc) + 1, dtype=np.int64)
+    off = np.zeros(len(enc) + 1, dtype=np.int32)
     off[1:] = np.cumsum([len(b) for b in enc])
     return np.frombuffer(b"".join(enc), dtype=np.uint8).copy(), off
 
@@ -80,7 +83,7 @@ def _unblob(blob: np.ndarray, off: np.ndarray) -> list[str]:
 
 
 def _csr(rows: list[list[int]], dtype) -> tuple[np.ndarray, np.ndarray]:
-    ptr = np.zeros(len(rows) + 1, dtype=np.int64)
+    ptr = np.zeros(len(rows) + 1, dtype=np.int32)
     ptr[1:] = np.cumsum([len(r) for r in rows])
     flat = np.fromiter((x for r in rows for x in r), dtype=dtype, count=int(ptr[-1]))
     return ptr, flat
@@ -142,7 +145,34 @@ def build_arrays() -> dict[str, np.ndarray]:
         "prop_ptr": prop_ptr, "prop_idx": prop_idx,
         "pool": np.array([index[p] for p in pool], dtype=np.int32),
         "null_draws": np.concatenate([d.ravel() for d in draws]),
+        **_empty_panel_pool(),
     }
+
+
+def add_panel_pool(arrays: dict[str, np.ndarray], genes: list[str]) -> dict[str, np.ndarray]:
+    """Store the null pool's best-IC matrix (genes x pool terms) for ``genes`` (the bundled
+    panel's): as int16 codes into the sorted distinct IC values, so it stays small and exact."""
+    from .phenotype import PhenotypeMatcher
+
+    base = {k: v for k, v in arrays.items() if not k.startswith(("panel_", "pool_best_"))}
+    base.update(_empty_panel_pool())
+    best = PhenotypeMatcher(genes, model=PhenotypeModel(base))._pool()
+    values = np.unique(best)
+    codes = np.searchsorted(values, best).astype(np.int16)
+    blob, off = _blob(list(genes))
+    return {**base, "panel_blob": blob, "panel_off": off, "pool_best_ic": values, "pool_best_code": codes}
+
+
+def _empty_panel_pool() -> dict[str, np.ndarray]:
+    return {"panel_blob": np.zeros(0, dtype=np.uint8), "panel_off": np.zeros(1, dtype=np.int32),
+            "pool_best_ic": np.zeros(0), "pool_best_code": np.zeros((0, 0), dtype=np.int16)}
+
+
+def build_shipped_arrays() -> dict[str, np.ndarray]:
+    """The shipped model: :func:`build_arrays` plus the null pool for the bundled panel's genes."""
+    from .panel import load_panel
+
+    return add_panel_pool(build_arrays(), list(load_panel(None).genes))
 
 
 def write(arrays: dict[str, np.ndarray], target: Union[str, Path]) -> None:
@@ -155,8 +185,8 @@ def write(arrays: dict[str, np.ndarray], target: Union[str, Path]) -> None:
 
 
 def build(target: Union[str, Path]) -> "PhenotypeModel":
-    """Build the model from the installed hpo3 into ``target`` and return it."""
-    arrays = build_arrays()
+    """Build the shipped model from the installed hpo3 into ``target`` and return it."""
+    arrays = build_shipped_arrays()
     write(arrays, target)
     return PhenotypeModel(arrays)
 
@@ -208,11 +238,12 @@ class PhenotypeModel:
         return f"HP:{int(self._num[i]):07d}"
 
     @cached_property
-    def _names(self) -> list[str]:
-        return _unblob(self.arrays["name_blob"], self.arrays["name_off"])
+    def _name_raw(self) -> tuple[bytes, list[int]]:
+        return self.arrays["name_blob"].tobytes(), self.arrays["name_off"].tolist()
 
     def name(self, i: int) -> str:
-        return self._names[i]
+        raw, off = self._name_raw  # decoded one name at a time: a case needs few of them
+        return raw[off[i]:off[i + 1]].decode("utf-8")
 
     def ancestors(self, i: int) -> np.ndarray:
         """Rows of the term's ancestors and the term itself (sorted)."""
@@ -240,6 +271,21 @@ class PhenotypeModel:
         start = NULL_SAMPLES * sum(min(j, self.pool.size) for j in range(1, size))
         flat = self.arrays["null_draws"][start:start + NULL_SAMPLES * k]
         return flat.reshape(NULL_SAMPLES, k).astype(np.int64)
+
+    def stored_pool_best(self, symbols: list[str]) -> Optional[np.ndarray]:
+        """The null pool's best-IC matrix for these genes when every one of them is stored
+        (the bundled panel's genes; see :func:`add_panel_pool`), else None."""
+        a = self.arrays
+        if a["pool_best_code"].size == 0:
+            return None
+        rows = self._panel_rows
+        if any(s not in rows for s in symbols):
+            return None
+        return a["pool_best_ic"][a["pool_best_code"][[rows[s] for s in symbols]]]
+
+    @cached_property
+    def _panel_rows(self) -> dict[str, int]:
+        return {s: i for i, s in enumerate(_unblob(self.arrays["panel_blob"], self.arrays["panel_off"]))}
 
     # ---- genes ------------------------------------------------------------------------
     @cached_property
@@ -294,7 +340,7 @@ def _locate() -> PhenotypeModel:
                 return model
         except (OSError, ValueError, KeyError):
             pass  # unreadable or partial: rebuilt below
-    arrays = build_arrays()
+    arrays = build_shipped_arrays()
     try:
         write(arrays, cached)
     except OSError:

@@ -22,10 +22,11 @@ from irdtriage.phenotype import (
 from irdtriage.phenotype_hpo3 import (
     Hpo3PhenotypeMatcher, resolve_terms_hpo3, retinal_fit_hpo3, term_names_hpo3,
 )
-from irdtriage.phenotype_model import SHIPPED, PhenotypeModel, build_arrays, get_model, hpo3_version
+from irdtriage.phenotype_model import SHIPPED, PhenotypeModel, build_shipped_arrays, get_model, hpo3_version
 
 PHENOPACKETS = Path(__file__).resolve().parents[1].parent / "shared" / "refdata" / "phenopackets"
-# Panel genes plus genes outside the retina and a symbol HPO does not annotate.
+# Panel genes plus genes outside the retina and a symbol HPO does not annotate (so the null pool
+# is computed, not read from the matrix stored for the bundled panel; both are compared below).
 GENES = list(load_panel(None).genes) + ["PKD1", "COL2A1", "FBN1", "NOT_A_GENE"]
 
 
@@ -57,7 +58,7 @@ def test_shipped_model_is_what_the_installed_hpo3_builds():
     # so the shipped model cannot go stale silently after an hpo3 upgrade.
     shipped = PhenotypeModel.load(SHIPPED)
     assert shipped.hpo3_version == hpo3_version()
-    fresh = build_arrays()
+    fresh = build_shipped_arrays()
     assert sorted(fresh) == sorted(shipped.arrays)
     for k, v in fresh.items():
         assert v.dtype == shipped.arrays[k].dtype and np.array_equal(v, shipped.arrays[k]), k
@@ -94,6 +95,9 @@ def test_random_eye_and_whole_ontology_profiles(pair, ont):
     assert model_m.unannotated == ref_m.unannotated and "NOT_A_GENE" in ref_m.unannotated
     rng = random.Random(20250101)
     assert np.array_equal(model_m._pool(), ref_m._pool())  # the null pool: genes x eye terms, best IC
+    panel_only = PhenotypeMatcher(load_panel(None).genes)  # the bundled panel's genes: the stored matrix
+    assert model_m.model.stored_pool_best(panel_only.genes) is not None
+    assert np.array_equal(panel_only._pool(), ref_m._pool()[[ref_m.genes.index(g) for g in panel_only.genes]])
     eye = model_m.pool_terms
     assert eye == ref_m.pool_terms
     live = [t.id for t in ont if not t.is_obsolete]
@@ -105,7 +109,8 @@ def test_random_eye_and_whole_ontology_profiles(pair, ont):
         _same(model_m, ref_m, PhenotypeProfile(present=present, excluded=excluded))
 
 
-@pytest.mark.skipif(not PHENOPACKETS.is_dir(), reason="../shared/refdata/phenopackets (phenopacket-store cases) not present")
+@pytest.mark.skipif(not PHENOPACKETS.is_dir(),
+                    reason="../shared/refdata/phenopackets (phenopacket-store cases) not present")
 def test_phenopacket_store_cases(pair):
     from irdtriage.phenopacket_in import read_phenopacket
 
