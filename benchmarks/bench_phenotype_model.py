@@ -37,22 +37,23 @@ from cohort_cases import KINDS, write_vcf  # noqa: E402
 TERMS = ["HP:0000510", "HP:0000662", "HP:0000551", "HP:0000512", "HP:0007663", "HP:0000639", "HP:0001133"]
 
 
-def run(cmd: list[str], env: dict) -> tuple[float, float]:
+def run(cmd: list[str], env: dict, cwd: str) -> tuple[float, float]:
     t0 = time.perf_counter()
-    p = subprocess.Popen(cmd, env=env, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    # cwd = the source folder: ``python -m`` puts the working folder first on sys.path
+    p = subprocess.Popen(cmd, env=env, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     _, status, ru = os.wait4(p.pid, 0)
     wall = time.perf_counter() - t0
     err = p.stderr.read().decode(errors="replace") if p.stderr else ""
     p.returncode = os.waitstatus_to_exitcode(status)
-    if p.returncode not in (0, 1):  # 1 is not an error here? keep every non-zero visible
+    if p.returncode != 0:
         raise SystemExit(f"{' '.join(cmd)} exited {p.returncode}: {err.strip().splitlines()[-1:]}")
     return wall, ru.ru_maxrss / 1024.0  # MB (ru_maxrss is in KB on Linux)
 
 
-def series(label: str, cmd_for, n: int, env: dict, work: Path) -> None:
+def series(label: str, cmd_for, n: int, env: dict, work: Path, cwd: str) -> None:
     walls, rss = [], []
     for k in range(n):
-        w, r = run(cmd_for(work / f"{label.replace(' ', '_')}_{k}"), env)
+        w, r = run(cmd_for(work / f"{label.replace(' ', '_').replace(':', '')}_{k}"), env, cwd)
         walls.append(w)
         rss.append(r)
     print(f"{label:42s} wall median {statistics.median(walls):.2f} s (min {min(walls):.2f}), "
@@ -109,8 +110,9 @@ def main() -> int:
             base = [sys.executable, "-m", "irdtriage", "triage", str(vcf), "--formats", "json,tsv"]
             series(f"{name}: triage with {len(terms)} HPO terms", lambda out: base + ["--hpo", ",".join(terms),
                                                                                        "--out", str(out)],
-                   args.repeat, env, work)
-            series(f"{name}: triage without phenotype", lambda out: base + ["--out", str(out)], args.repeat, env, work)
+                   args.repeat, env, work, src)
+            series(f"{name}: triage without phenotype", lambda out: base + ["--out", str(out)], args.repeat, env, work,
+                   src)
     in_process(terms)
     return 0
 

@@ -369,6 +369,9 @@ def resolve_terms(ids: Iterable[str]) -> tuple[list[str], list[dict[str, Any]]]:
     Each change names the old ID, its label when known, and why; the caller reports them.
     Order is kept and duplicates (also after replacement) are dropped.
     """
+    ids = list(ids)
+    if not ids:
+        return [], []  # no phenotype: the model is not even loaded
     m = _model()
     version = m.version
     kept: list[str] = []
