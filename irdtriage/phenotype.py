@@ -6,7 +6,9 @@ Method
   the information content (IC) of their most informative common ancestor (MICA). IC is
   ``-log p(term)`` where ``p`` is the fraction of OMIM diseases annotated with the term or a
   descendant (the ``omim`` information content shipped with the HPO data in ``hpo3``), as in
-  Köhler et al., Am J Hum Genet 2009;85:457-464.
+  Köhler et al., Am J Hum Genet 2009;85:457-464. The ontology, IC and gene annotations are read
+  from the precomputed phenotype model (:mod:`irdtriage.phenotype_model`, built from ``hpo3``);
+  :mod:`irdtriage.phenotype_hpo3` computes the same directly on ``hpo3`` as the reference.
 * **Set similarity** — asymmetric best-match average from the patient to the gene
   (Köhler et al. 2009; reviewed by Pesquita et al., PLoS Comput Biol 2009;5:e1000443):
   ``score = mean over patient terms p of max over gene terms g of IC(MICA(p, g))``. Because
