@@ -246,7 +246,8 @@ def build_parser() -> argparse.ArgumentParser:
     b = sub.add_parser("batch", help="triage every case of a manifest; summary across the cases",
                        description="Triage every case of a tab-separated manifest (columns case, vcf, sample, "
                                    "phenopacket, hpo, ped, sex, previous; case and vcf required) into OUT/<case>/, "
-                                   "then write OUT/batch.json, OUT/cohort.tsv and OUT/cohort.html. Exit 0 when "
+                                   "then write OUT/batch.json, OUT/cohort.tsv, OUT/cohort_genes.tsv, "
+                                   "OUT/cohort_alleles.tsv and OUT/cohort.html. Exit 0 when "
                                    "every case finished, 2 when any failed (each failure is recorded).",
                        epilog=CAUTION)
     b.add_argument("manifest", help="manifest TSV (relative paths resolve from its folder)")
@@ -764,7 +765,7 @@ def cmd_batch(args, argv) -> int:
     paths = write_summary(settings["out"], batch)
     c = batch["counts"]
     print(f"{c['cases']} case(s): {c['ok']} run, {c['unchanged']} unchanged (skipped), {c['failed']} failed; "
-          f"wrote {paths['tsv']} and {paths['html']}")
+          f"wrote {paths['tsv']}, {paths['genes_tsv']}, {paths['alleles_tsv']} and {paths['html']}")
     print("CAUTION: " + " ".join(CAUTION.split()))
     return 2 if c["failed"] or c.get("not run") else 0
 

@@ -141,20 +141,19 @@ def parse_hpo_terms(value: Union[str, Iterable[str]], *, source: Optional[str] =
     Obsolete IDs are replaced by their replacement (ObsoleteTermWarning); obsolete IDs
     without a replacement raise InputError. Order is kept, duplicates are dropped.
     """
-    from irdtriage.phenotype import get_ontology
+    from irdtriage.phenotype_model import get_model
 
-    ont = get_ontology()
+    model = get_model()
     result: list[str] = []
     for tok, path, line in _tokens(value, source):
         if not HPO_ID.match(tok):
             raise InputError(f"malformed HPO term ID {tok!r} (expected HP: followed by 7 digits)", path, line)
-        try:
-            term = ont.get_hpo_object(tok)
-        except (RuntimeError, KeyError, ValueError):
-            raise InputError(f"HPO term {tok} is not in the ontology (HPO {ont.version()})", path, line) from None
-        tid = term.id
-        if term.is_obsolete:
-            repl = term.replaced_by
+        i = model.index(tok)
+        if i is None:
+            raise InputError(f"HPO term {tok} is not in the ontology (HPO {model.version})", path, line) from None
+        tid = model.term_id(i)
+        if model.obsolete[i]:
+            repl = model.replaced_by(i)
             if not repl:
                 raise InputError(f"HPO term {tok} is obsolete and has no replacement", path, line)
             warnings.warn(f"HPO term {tok} is obsolete; using its replacement {repl}", ObsoleteTermWarning, stacklevel=2)
@@ -168,12 +167,11 @@ def profile_from_terms(
     value: Union[str, Iterable[str]], *, excluded: Union[str, Iterable[str]] = (), sex: Optional[str] = None
 ) -> PhenotypeProfile:
     """A PhenotypeProfile from HPO IDs given on the command line (``--hpo``)."""
-    from irdtriage.phenotype import get_ontology
+    from irdtriage.phenotype import term_names
 
     present = parse_hpo_terms(value)
     exc = parse_hpo_terms(excluded) if excluded else []
-    ont = get_ontology()
-    labels = {t: ont.get_hpo_object(t).name for t in present + exc}
+    labels = term_names(present + exc)
     return PhenotypeProfile(present=tuple(present), excluded=tuple(exc), sex=sex, source="--hpo", labels=labels)
 
 

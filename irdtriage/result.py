@@ -274,20 +274,13 @@ def _protein(h: models.GeneHypothesis) -> Optional[dict[str, Any]]:
 
 
 def hpo_labels(term_ids) -> dict[str, str]:
-    """HPO term names from the ontology bundled with hpo3 (offline); ids it lacks are left out."""
+    """HPO term names from the bundled phenotype model (offline); ids it lacks are left out."""
     ids = [t for t in dict.fromkeys(term_ids or ()) if t]
     if not ids:
         return {}
-    from .phenotype import get_ontology
+    from .phenotype import term_names
 
-    onto = get_ontology()
-    out = {}
-    for t in ids:
-        try:
-            out[t] = onto.get_hpo_object(t).name
-        except (KeyError, ValueError, RuntimeError, AttributeError):
-            continue
-    return out
+    return term_names(ids)
 
 
 def build_result(*, vcf_path, opts, started, panel, rules, intake, proband, sex, sex_source, inferred_sex,

@@ -72,6 +72,34 @@ def test_tsv_has_one_row_per_case_with_the_caution(batch_dir):
     assert all(r["case_status"] == res[r["case"]]["case"]["status"] for r in rows[:-1])
 
 
+def test_gene_and_allele_tables_agree_with_the_case_results(batch_dir):
+    # Checked against the per-case result.json files and, for the allele, the planted carriers.
+    out, batch = batch_dir
+    res = results(out)
+    genes = list(csv.DictReader((out / "cohort_genes.tsv").open(), delimiter="\t"))
+    assert list(genes[0]) == ["gene", "cases", "solved", "case_names", "caution"]
+    want: dict[str, tuple[set, set]] = {}
+    for name, r in res.items():
+        for f in r["findings"]:
+            if f["interpretation_status"] in ("CAUSATIVE", "CANDIDATE"):
+                c, s = want.setdefault(f["gene"], (set(), set()))
+                c.add(name)
+                if f["interpretation_status"] == "CAUSATIVE":
+                    s.add(name)
+    assert {g["gene"]: (int(g["cases"]), int(g["solved"]), g["case_names"]) for g in genes} == {
+        g: (len(c), len(s), ",".join(sorted(c))) for g, (c, s) in want.items()}
+    assert all("qualified clinical scientist" in g["caution"] for g in genes)
+    alleles = list(csv.DictReader((out / "cohort_alleles.tsv").open(), delimiter="\t"))
+    assert list(alleles[0])[-1] == "caution"
+    chrom, pos, ref, alt, _ = RPE65_STOP
+    row = {a["allele"]: a for a in alleles}[f"{chrom[3:]}-{pos}-{ref}-{alt}"]
+    planted = [i for i in range(CASES) if any(rec[0] == RPE65_STOP for rec in KINDS[i % len(KINDS)][0])]
+    assert int(row["carriers"]) == len(planted) == 3 and row["gene"] == "RPE65"
+    assert int(row["two_copies"]) + int(row["one_copy"]) == 3
+    assert row["cases"] == ",".join(f"C{i + 1:04d}" for i in planted)
+    assert all(int(a["carriers"]) >= 2 for a in alleles)
+
+
 def test_html_is_self_contained(batch_dir):
     out, batch = batch_dir
     html = (out / "cohort.html").read_text()

@@ -27,7 +27,7 @@ COLUMNS = ("case", "vcf", "sample", "phenopacket", "hpo", "ped", "sex", "previou
 REQUIRED = ("case", "vcf")
 PATH_COLUMNS = ("vcf", "phenopacket", "ped", "previous")
 #: names the batch itself writes into --out; a case may not take them
-RESERVED = frozenset({"batch.json", "cohort.tsv", "cohort.html"})
+RESERVED = frozenset({"batch.json", "cohort.tsv", "cohort_genes.tsv", "cohort_alleles.tsv", "cohort.html"})
 _CASE_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._+-]{0,127}$")
 
 

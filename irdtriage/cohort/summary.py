@@ -1,4 +1,6 @@
-"""Across the cases of a batch: the numbers (``cohort_data``) and the table ``cohort.tsv``.
+"""Across the cases of a batch: the numbers (``cohort_data``) and the tables ``cohort.tsv`` (one row
+per case), ``cohort_genes.tsv`` (one row per gene) and ``cohort_alleles.tsv`` (one row per recurrent
+allele).
 
 Read from batch.json's records and each finished case's ``result.json`` (never from internal
 objects, so a summary can be rebuilt from a batch folder). ``cohort.html`` is drawn from the same
@@ -27,6 +29,9 @@ from .compare import allele_key, short_class
 STATUSES = ("SOLVED", "IN_PROGRESS", "UNSOLVED")
 TSV_COLUMNS = ("case", "run_status", "case_status", "top_gene", "genotype_fit", "plp_findings",
                "candidate_genes", "status_before", "changed", "error", "caution")
+GENE_COLUMNS = ("gene", "cases", "solved", "case_names", "caution")
+ALLELE_COLUMNS = ("allele", "gene", "hgvs_c", "hgvs_p", "classes", "carriers", "two_copies", "one_copy", "cases",
+                  "caution")
 
 
 def _load(out: Path, case: str) -> Optional[dict]:
@@ -110,22 +115,49 @@ def cohort_data(out: str | os.PathLike, batch: dict) -> dict[str, Any]:
             "cautions": [CAUTION]}
 
 
-def render_tsv(data: dict) -> str:
-    """One row per case; the caution on every row, as in findings.tsv."""
+def _tsv(rows, columns) -> str:
     buf = io.StringIO()
-    w = csv.DictWriter(buf, fieldnames=TSV_COLUMNS, delimiter="\t", lineterminator="\n", extrasaction="ignore")
+    w = csv.DictWriter(buf, fieldnames=columns, delimiter="\t", lineterminator="\n", extrasaction="ignore")
     w.writeheader()
-    for row in data["cases"]:
-        w.writerow({k: ("" if row.get(k) is None else " ".join(str(row.get(k)).split())) for k in TSV_COLUMNS})
+    for row in rows:
+        w.writerow({k: ("" if row.get(k) is None else " ".join(str(row.get(k)).split())) for k in columns})
     return buf.getvalue()
 
 
+def _caution() -> str:
+    return " ".join(CAUTION.split())
+
+
+def render_tsv(data: dict) -> str:
+    """One row per case; the caution on every row, as in findings.tsv."""
+    return _tsv(data["cases"], TSV_COLUMNS)
+
+
+def render_genes_tsv(data: dict) -> str:
+    """One row per gene with a CAUSATIVE or CANDIDATE finding in some case: the number of such
+    cases, how many of them it solves (CAUSATIVE), and their names (comma-separated)."""
+    return _tsv(({**g, "case_names": ",".join(g["case_names"]), "caution": _caution()} for g in data["genes"]),
+                GENE_COLUMNS)
+
+
+def render_alleles_tsv(data: dict) -> str:
+    """One row per recurrent allele (chrom-pos-ref-alt in two or more cases): carriers, carriers
+    of two copies (homozygous/hemizygous) and of one copy, the classes given, and the cases."""
+    return _tsv(({**a, "allele": a["key"], "classes": ",".join(c for c in a["classes"] if c),
+                  "cases": ",".join(a["cases"]), "caution": _caution()} for a in data["recurrent_alleles"]),
+                ALLELE_COLUMNS)
+
+
 def write_summary(out: str | os.PathLike, batch: dict) -> dict[str, Path]:
-    """Write cohort.tsv and cohort.html into ``out`` (each atomically); returns their paths."""
+    """Write cohort.tsv, cohort_genes.tsv, cohort_alleles.tsv and cohort.html into ``out`` (each
+    atomically); returns their paths."""
     from .summary_html import render_html
 
     out = Path(out)
     data = cohort_data(out, batch)
     write_text(out / "cohort.tsv", render_tsv(data))
+    write_text(out / "cohort_genes.tsv", render_genes_tsv(data))
+    write_text(out / "cohort_alleles.tsv", render_alleles_tsv(data))
     write_text(out / "cohort.html", render_html(data))
-    return {"tsv": out / "cohort.tsv", "html": out / "cohort.html"}
+    return {"tsv": out / "cohort.tsv", "genes_tsv": out / "cohort_genes.tsv",
+            "alleles_tsv": out / "cohort_alleles.tsv", "html": out / "cohort.html"}

@@ -26,7 +26,7 @@ class WorkerContext:
     panel: Any
     rules: Any
     combining: Any
-    matcher: Any  # irdtriage.phenotype.PhenotypeMatcher (loaded lazily: the HPO ontology is large)
+    matcher: Any  # irdtriage.phenotype.PhenotypeMatcher over the precomputed phenotype model (loaded lazily)
 
     def versions(self) -> dict[str, Any]:
         return {"tool": __version__,
