@@ -219,6 +219,11 @@ def _breakend_event(ev: dict[str, Any], alt: str, alt_type: str, pos: int, info:
         alt.rsplit("[", 1)[-1].rsplit("]", 1)[-1] if bnd.form in ("]p]t", "[p[t") else alt.strip("."))
     if ref and t and t[:1].upper() != ref[:1].upper() and t[-1:].upper() != ref[-1:].upper():
         fail(f"breakend ALT {alt[:40]!r} does not carry the REF base {ref[:1]} (VCF 4.3 section 5.4)")
+    if bnd.mate_chrom and bnd.mate_chrom.startswith("CHR"):
+        # the VCF reader upper-cases non-symbolic ALTs; UCSC-style contig names are written "chr..."
+        mate = "chr" + bnd.mate_chrom[3:]
+        alt = alt.replace(bnd.mate_chrom + ":", mate + ":", 1)
+        bnd = Breakend(bnd.form, mate, bnd.mate_pos)
     bnd = Breakend(bnd.form, bnd.mate_chrom, bnd.mate_pos, info.get("MATEID") or None)
     return StructuralEvent(
         chrom=str(ev["chrom"]), start=pos, end=pos, svtype="BND", alt=alt, record_pos=pos, line=ev.get("line"),
