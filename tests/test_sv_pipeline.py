@@ -199,6 +199,14 @@ def test_translocation_breakpoint_in_abca4_pairs_with_a_stop(tmp_path):
     assert pvs1["met"] is True and pvs1["strength"] == "Strong"
     top = r["genes"][0]
     assert top["symbol"] == "ABCA4" and top["genotype_fit"] == "biallelic phase unknown"
+    # the result still satisfies the bundled JSON schema (checked by jsonschema)
+    import json
+    from pathlib import Path
+
+    import jsonschema
+
+    schema = Path(__file__).resolve().parents[1] / "irdtriage" / "schema" / "result.schema.json"
+    jsonschema.validate(json.loads(json.dumps(r)), json.loads(schema.read_text()))
 
 
 def test_riggs_section_5_reads_the_parents_calls(tmp_path):
