@@ -364,6 +364,13 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     from .family_criteria import note_final_partner_classes
 
     note_final_partner_classes(findings)
+    from .sv.classify import riggs_family  # Riggs 2020 section 5 from the relatives' calls of each event
+
+    status = {sid: per.affected for sid, per in (pedigree.individuals.items() if pedigree is not None else ())}
+    for f in findings:
+        if f.structural is not None and f.structural.info.get("riggs"):
+            riggs_family(f.structural.info["riggs"], panel.genes[f.gene], f.variant.calls, proband, mother, father,
+                         status, bool(profile.present))
 
     # 11. genotype fit per gene -----------------------------------------------------
     from .rank import assign_interpretation_status, case_call, rank_hypotheses

@@ -96,3 +96,124 @@ def test_no_pvs1_where_loss_of_function_is_not_the_mechanism():
 ])
 def test_riggs_class_cut_offs(total, cls):
     assert riggs_class(total) == cls
+
+
+# ---------------------------------------------------------------------------------------------
+# Riggs et al. 2020 sections 3-5.  Table 1 (loss) section 3: 3A 0-24 genes 0, 3B 25-34 genes 0.45,
+# 3C 35+ genes 0.90; Table 2 (gain): 3A 0-34 genes 0, 3B 35-49 genes 0.45, 3C 50+ genes 0.90.
+# Section 4 of both tables: "skip to section 5" when section 2 scored an established
+# haploinsufficient (loss) / triplosensitive (gain) gene.  Section 5 suggested points: 5B -0.30
+# (inherited from an apparently unaffected parent, specific phenotype), 5C -0.15 (nonspecific),
+# 5D = 4F-4H (3-4 segregations 0.15, 5-6 0.30, 7+ 0.45), 5E = 4I (-0.45 per family), 5F 0.
+# Table 2, 2I: PVS1 0.90, PVS1_Strong 0.45, N/A 0 (no Moderate/Supporting categories for gains).
+from irdtriage.models import Call  # noqa: E402
+
+
+def _section(riggs, prefix):
+    return [s for s in riggs["sections"] if s["section"].startswith(prefix)]
+
+
+@pytest.mark.parametrize("count,code,points", [(1, "3A", 0.0), (24, "3A", 0.0), (25, "3B", 0.45), (34, "3B", 0.45),
+                                               (35, "3C", 0.90)])
+def test_section_3_bands_for_losses(count, code, points):
+    g = PANEL.genes["ABCA4"]
+    o = gene_overlap("DEL", 94527001, 94566000, g, B)
+    riggs = riggs_points("DEL", o, g, criteria("DEL", None, o, g)["PVS1"], gene_count=count)
+    (s3,) = _section(riggs, "3")
+    assert (s3["section"], s3["points"]) == (code, points)
+
+
+@pytest.mark.parametrize("count,code", [(34, "3A"), (35, "3B"), (49, "3B"), (50, "3C")])
+def test_section_3_bands_for_gains(count, code):
+    g = PANEL.genes["ABCA4"]
+    o = gene_overlap("DUP", 94527001, 94566000, g, B)
+    riggs = riggs_points("DUP", o, g, criteria("DUP", None, o, g)["PVS1"], gene_count=count)
+    assert _section(riggs, "3")[0]["section"] == code
+
+
+def test_section_4_skipped_after_an_established_hi_gene_else_not_evaluable():
+    _, _, prpf31 = _assess("DEL", 54610000, 54640000, "PRPF31")
+    _, _, abca4 = _assess("DEL", 94527001, 94566000, "ABCA4")
+    assert "skipped" in _section(prpf31, "4")[0]["reason"]
+    assert "not evaluable without case literature" in _section(abca4, "4")[0]["reason"]
+
+
+def _call(sample, gt, zyg):
+    return Call(sample, gt, zygosity=zyg)
+
+
+def _family(gene, calls, affected, specific=True):
+    from irdtriage.sv.classify import riggs_family
+
+    g = PANEL.genes[gene]
+    start, end = (54610000, 54640000) if gene == "PRPF31" else (94527001, 94566000)
+    o = gene_overlap("DEL", start, end, g, B)
+    riggs = riggs_points("DEL", o, g, criteria("DEL", None, o, g)["PVS1"])
+    return riggs_family(riggs, g, calls, "KID", "MUM", "DAD", affected, specific)
+
+
+def test_section_5_loss_of_an_hi_gene_from_an_unaffected_parent():
+    calls = {"KID": _call("KID", (0, 1), "heterozygous"), "MUM": _call("MUM", (0, 1), "heterozygous"),
+             "DAD": _call("DAD", (0, 0), "homozygous reference")}
+    riggs = _family("PRPF31", calls, {"KID": True, "MUM": False, "DAD": False})
+    (s5,) = _section(riggs, "5")
+    assert (s5["section"], s5["points"]) == ("5B", -0.30)
+    # 2A 1.00 + 5B -0.30 = 0.70: uncertain significance (Table 1 header cut-offs)
+    assert riggs["total"] == 0.7 and riggs["classification"] == "Uncertain significance"
+    riggs = _family("PRPF31", calls, {"KID": True, "MUM": False, "DAD": False}, specific=False)
+    assert _section(riggs, "5")[0]["points"] == -0.15  # 5C
+
+
+def test_section_5_carrier_parent_of_a_recessive_gene_is_not_penalised():
+    calls = {"KID": _call("KID", (0, 1), "heterozygous"), "MUM": _call("MUM", (0, 1), "heterozygous"),
+             "DAD": _call("DAD", (0, 0), "homozygous reference")}
+    riggs = _family("ABCA4", calls, {"KID": True, "MUM": False, "DAD": False})
+    (s5,) = _section(riggs, "5")
+    assert s5["section"] == "5B" and s5["points"] == 0.0 and "recessive" in s5["reason"]
+
+
+def test_section_5_de_novo_segregation_and_no_information():
+    kid = _call("KID", (0, 1), "heterozygous")
+    ref = lambda s: _call(s, (0, 0), "homozygous reference")  # noqa: E731
+    het = lambda s: _call(s, (0, 1), "heterozygous")  # noqa: E731
+    de_novo = _family("PRPF31", {"KID": kid, "MUM": ref("MUM"), "DAD": ref("DAD")}, {})
+    assert [s["section"] for s in _section(de_novo, "5")] == ["5A"]
+    assert _section(de_novo, "5")[0]["points"] == 0.0  # 4A-4D need reported cases
+    # affected father and three affected relatives carry it: 4 segregations -> 4F 0.15
+    calls = {"KID": kid, "MUM": ref("MUM"), "DAD": het("DAD"), "S1": het("S1"), "S2": het("S2"), "S3": het("S3")}
+    seg = _family("PRPF31", calls, {"DAD": True, "S1": True, "S2": True, "S3": True, "MUM": False})
+    (s5d,) = [s for s in _section(seg, "5") if s["section"] == "5D"]
+    assert s5d["points"] == 0.15
+    # an affected sibling without it: 4I -0.45
+    nonseg = _family("PRPF31", {"KID": kid, "SIB": ref("SIB")}, {"SIB": True})
+    assert [(s["section"], s["points"]) for s in _section(nonseg, "5")] == [("5E", -0.45)]
+    alone = _family("PRPF31", {"KID": kid}, {})
+    assert [(s["section"], s["points"]) for s in _section(alone, "5")] == [("5F", 0.0)]
+
+
+def test_gain_2i_has_no_moderate_points():
+    # ABCA4 exon 7 duplicated in frame: PVS1 not met; the table's 2I values for Moderate are 0
+    from irdtriage.sv.settings import load_settings
+
+    t = load_settings()["riggs"]["gain"]["2I"]
+    assert (t["VeryStrong"], t["Strong"], t["Moderate"], t["Supporting"]) == (0.90, 0.45, 0.0, 0.0)
+
+
+# ---------------------------------------------------------------------------------------------
+# Breakpoints of rearrangements (PVS1 as a reasoned call, see irdtriage.sv.classify.pvs1_breakend)
+def test_breakpoint_in_an_abca4_intron_disrupts_the_gene():
+    from irdtriage.sv.classify import pvs1_breakend
+    from irdtriage.sv.overlap import breakend_overlap
+
+    g = PANEL.genes["ABCA4"]
+    # intron 13 lies between exon 14 (ends 94,526,315) and exon 13 (starts 94,528,133), minus strand;
+    # exons 14-50 lie 3' of it: c.1938 onwards of 6,822 nt, 71.6 % of the coding sequence
+    o = breakend_overlap(94527500, g, B, "translocation junction with chr19:1000000")
+    assert o.extent == "breakpoint" and o.introns == (13,) and o.in_cds
+    assert abs(o.protein_fraction - (6822 - 1937) / 6822) < 0.001
+    assert "breakpoint within intron 13 of ABCA4" in o.words
+    p = pvs1_breakend(o, g)
+    assert p.met and p.strength == "Strong" and "reasoned call" in p.reason
+    # GUCA1A: loss of function is not its retinal mechanism in the panel
+    o2 = breakend_overlap(42140000, PANEL.genes["GUCA1A"], B, "inversion junction")
+    assert pvs1_breakend(o2, PANEL.genes["GUCA1A"]).met is False

@@ -87,6 +87,11 @@ BAD = [
     ("SVTYPE=FOO;END=94471000", "<DEL>", "unknown SVTYPE 'FOO'"),
     ("SVTYPE=DUP;END=94471000;SVLEN=1000", "<DEL>", "SVTYPE DUP disagrees with ALT <DEL>"),
     ("END=94471000", "<XYZ>", "unknown structural type: ALT <XYZ>"),
+    # VCF 4.3 section 5.4: a mate is written chrom:pos between matching brackets
+    ("SVTYPE=BND", "N[chr2:abc[", "malformed breakend ALT 'N[CHR2:ABC['"),
+    ("SVTYPE=BND", "N[chr2:321682]", "malformed breakend ALT"),
+    ("SVTYPE=BND", "N[chr2:321682[N", "malformed breakend ALT"),
+    ("SVTYPE=BND", "<DEL>", "SVTYPE BND needs a breakend ALT"),
 ]
 
 
@@ -100,3 +105,34 @@ def test_self_contradicting_records_are_one_line_errors(tmp_path, info, alt, nee
     assert len(lines) == 1, r.stderr
     assert f"{path}:{len(open(path).read().splitlines())}:" in lines[0] and needle in lines[0], lines[0]
     assert not out.exists() or not any(out.iterdir())
+
+
+# VCF 4.3 section 5.4, the breakend example block (from memory of the specification): chr2 321681
+# G -> G]17:198982], chr2 321682 T -> ]13:123456]T, chr13 123456 C -> C[2:321682[, chr13 123457 A ->
+# [17:198983[A, chr17 198982 A -> A]2:321681], chr17 198983 C -> [13:123457[C; plus the single
+# breakends of section 5.4.9 (G. and .A).  The four forms: t[p[ and ]p]t join the piece in the same
+# orientation, t]p] and [p[t join it reverse-complemented.
+SPEC_BND = [
+    ("2", 321681, "G]17:198982]", "t]p]", "17", 198982, "translocation junction with 17:198982"),
+    ("2", 321682, "]13:123456]T", "]p]t", "13", 123456, "translocation junction with 13:123456"),
+    ("13", 123456, "C[2:321682[", "t[p[", "2", 321682, "translocation junction with 2:321682"),
+    ("13", 123457, "[17:198983[A", "[p[t", "17", 198983, "translocation junction with 17:198983"),
+    ("17", 198982, "A]2:321681]", "t]p]", "2", 321681, "translocation junction with 2:321681"),
+    ("17", 198983, "[13:123457[C", "[p[t", "13", 123457, "translocation junction with 13:123457"),
+    ("1", 1000, "G.", "t.", None, None, "single breakend (partner unknown)"),
+    ("1", 1000, ".A", ".t", None, None, "single breakend (partner unknown)"),
+    # same chromosome: reverse-complemented joins are inversion junctions; t[p[ to a later position
+    # skips the bases between (deletion-type), to an earlier one repeats them (duplication-type)
+    ("1", 1000, "A]1:5000]", "t]p]", "1", 5000, "inversion junction with 1:5000"),
+    ("1", 1000, "A[1:5000[", "t[p[", "1", 5000, "deletion-type junction with 1:5000 (same chromosome)"),
+    ("1", 5000, "A[1:1000[", "t[p[", "1", 1000, "duplication-type junction with 1:1000 (same chromosome)"),
+]
+
+
+@pytest.mark.parametrize("chrom,pos,alt,form,mate_chrom,mate_pos,junction", SPEC_BND)
+def test_spec_breakends_parse(chrom, pos, alt, form, mate_chrom, mate_pos, junction):
+    from irdtriage.sv.intake import parse_breakend
+
+    b = parse_breakend(alt)
+    assert (b.form, b.mate_chrom, b.mate_pos) == (form, mate_chrom, mate_pos)
+    assert b.junction(chrom, pos) == junction

@@ -58,3 +58,24 @@ def test_deletion_finding_in_every_output(tmp_path):
 
     terminal = " ".join(r.stdout.split())
     assert "deletes exons 6-13 of ABCA4" in terminal and "MLPA" in terminal
+
+
+from test_report_html import _chromium, _Text, needs_chromium  # noqa: E402
+
+from irdtriage.report.html import render_html  # noqa: E402
+
+
+@needs_chromium
+def test_html_gene_sketch_draws_the_deleted_exons(tmp_path):
+    # exons 6-13 of ABCA4's 50 (NM_000350, GENCODE-derived canonical table; see tests/test_sv_pipeline.py)
+    # drawn hatched on the exon map, read back from the DOM a real headless Chromium builds
+    from irdtriage.pipeline import triage
+
+    vcf = write_vcf(tmp_path / "kid.vcf", ["KID", "MUM", "DAD"], [DEL_6_13, STOP_EX14])
+    page = tmp_path / "report.html"
+    page.write_text(render_html(triage(vcf, sample="KID", hpo=ABCA4_HPO)), encoding="utf-8")
+    dom = _Text()
+    dom.feed(_chromium(tmp_path, page, "--dump-dom").stdout)
+    hatched = [a for t, a in dom.tags if t == "rect" and (a.get("fill") or "").startswith("url(#irdt-exons")]
+    assert len(hatched) == 8
+    assert "deleted exons 6-13" in dom.text  # the sketch's description

@@ -181,3 +181,42 @@ def test_structural_calls_from_a_second_vcf(tmp_path):
     assert found["structural"]["exons"] == list(range(6, 14))
     assert r["genes"][0]["symbol"] == "ABCA4" and r["genes"][0]["genotype_fit"] == "biallelic phase unknown"
     assert any("KID_SV is read as KID" in w for w in r["warnings"])
+
+
+def test_translocation_breakpoint_in_abca4_pairs_with_a_stop(tmp_path):
+    # one breakend of an invented chr1;chr19 translocation inside ABCA4 intron 13 (between exon 14,
+    # ending 94,526,315, and exon 13, starting 94,528,133; minus strand), ALT form t[p[ (VCF 4.3 section
+    # 5.4), and the heterozygous stop in exon 14: two disrupted alleles, phase unknown without parents
+    bnd = sv_record("chr1", 94527500, "N[chr19:1000000[", "SVTYPE=BND;MATEID=bnd2", ["0/1:.:.:60:."])
+    vcf = write_vcf(tmp_path / "bnd.vcf", ["KID"], [bnd, (*STOP_EX14[:6], STOP_EX14[6][:1])])
+    r = triage(vcf, hpo=ABCA4_HPO)
+    (sv,) = _structural(r, "ABCA4")
+    s = sv["structural"]
+    assert s["type"] == "BND" and s["extent"] == "breakpoint"
+    assert "breakpoint within intron 13 of ABCA4" in s["summary"] and "translocation junction" in s["summary"]
+    assert s["breakend"]["mate_chrom"] == "chr19" and s["breakend"]["mate_id"] == "bnd2"
+    pvs1 = _criterion(sv, "PVS1")
+    assert pvs1["met"] is True and pvs1["strength"] == "Strong"
+    top = r["genes"][0]
+    assert top["symbol"] == "ABCA4" and top["genotype_fit"] == "biallelic phase unknown"
+    # the result still satisfies the bundled JSON schema (checked by jsonschema)
+    import json
+    from pathlib import Path
+
+    import jsonschema
+
+    schema = Path(__file__).resolve().parents[1] / "irdtriage" / "schema" / "result.schema.json"
+    jsonschema.validate(json.loads(json.dumps(r)), json.loads(schema.read_text()))
+
+
+def test_riggs_section_5_reads_the_parents_calls(tmp_path):
+    # DEL_6_13: the unaffected mother carries it, the father does not (PED: both unaffected).  ABCA4
+    # is recessive, so inheritance from an unaffected parent is expected: 5B is shown without points
+    # (Riggs et al. 2020 Table 1 section 5 is built for dosage-sensitive genes).
+    vcf = write_vcf(tmp_path / "trio.vcf", ["KID", "MUM", "DAD"], [DEL_6_13, STOP_EX14])
+    ped = write_ped(tmp_path / "trio.ped", "KID", "MUM", "DAD")
+    r = triage(vcf, sample="KID", hpo=ABCA4_HPO, ped=ped)
+    (sv,) = _structural(r, "ABCA4")
+    sections = {x["section"]: x for x in sv["structural"]["riggs"]["sections"]}
+    assert sections["5B"]["points"] == 0.0 and "MUM" in sections["5B"]["reason"]
+    assert "3A" in sections and "4" in sections

@@ -398,6 +398,10 @@ def _gene_section(result: dict, g: dict) -> str:
         fig = svg.protein_svg(result, g, fs, fig_id=f"irdt-protein-{g.get('rank')}")
         parts.append(f'<figure>{fig}<figcaption>Figure: {e(sym)} protein sketch with the '
                      "position of each finding (domains only when the panel gives them).</figcaption></figure>")
+        exons = svg.exon_svg(g, fs, fig_id=f"irdt-exons-{g.get('rank')}")
+        if exons:  # copy-number / structural findings: the exons they delete, duplicate or break
+            parts.append(f'<figure>{exons}<figcaption>Figure: {e(sym)} exons with the copy-number and structural '
+                         "findings (deleted exons hatched).</figcaption></figure>")
     ordered = sorted(fs, key=_relevance)
     for f in ordered[:DETAIL_FINDINGS]:
         parts.append(_finding(f))

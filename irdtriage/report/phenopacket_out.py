@@ -251,6 +251,15 @@ def _genomic_interpretation(result: dict, f: dict, gene: dict, subject_id: str) 
             rec["filter"] = ";".join(f["filters"])
         vd["vcfRecord"] = rec
     vd["moleculeContext"] = "genomic"
+    if f.get("structural"):  # copy-number / structural finding: VRS copy number, SO type, symbolic record
+        from irdtriage.sv.phenopacket import descriptor
+
+        sv = descriptor(f, result.get("genome_build"))
+        g_expr = sv.pop("hgvsG", None)
+        if g_expr:
+            vd["expressions"] = vd.get("expressions", []) + [g_expr]
+        vd.pop("vcfRecord", None)
+        vd.update(sv)
     state = ALLELIC_STATE.get(f.get("zygosity"))
     if state:
         vd["allelicState"] = dict(state)
@@ -380,6 +389,8 @@ def to_phenopacket(result: dict, input_phenopacket: Optional[dict] = None,
             vd = gi["variantInterpretation"]["variationDescriptor"]
             if vd.get("allelicState"):
                 own_terms.append(vd["allelicState"])
+            if vd.get("structuralType"):
+                own_terms.append(vd["structuralType"])
     interp["summary"] = " ".join(f"CAUTION: {caution} Case: {case.get('summary') or ''}".split())
     existing = [i for i in pp.get("interpretations") or [] if i.get("id") != interp["id"]]
     pp["interpretations"] = existing + [interp]

@@ -207,3 +207,63 @@ def protein_svg(result: dict, gene: dict, findings: list[dict], fig_id: str = "i
             + (f". Without a protein position: {', '.join(str(f.get('id')) for f in unplaced)}" if unplaced else "") + ".")
     head, tail = _svg_open(W, H, title, desc, fig_id)
     return head + "".join(parts) + tail
+
+
+def exon_svg(gene: dict, findings: list[dict], fig_id: str = "irdt-exons") -> str:
+    """The panel transcript's exons as numbered boxes (transcript order, equal widths: a map of
+    exon numbers, not of lengths), one row per copy-number/structural finding: deleted exons
+    drawn hatched, duplicated exons filled, a breakpoint as a vertical mark at its exon or intron.
+    Empty when no structural finding names an exon count."""
+    rows = [f for f in findings if (f.get("structural") or {}).get("overlap", {}).get("exon_count")]
+    if not rows:
+        return ""
+    n = int(rows[0]["structural"]["overlap"]["exon_count"])
+    tx = rows[0]["structural"]["overlap"].get("transcript") or ""
+    W, left, right, row_h = 1000, 150, 30, 44
+    H = 50 + row_h * len(rows) + 24
+    step = (W - left - right) / n
+    parts = ['<defs><pattern id="' + fig_id + '-hatch" width="6" height="6" patternUnits="userSpaceOnUse" '
+             f'patternTransform="rotate(45)"><rect width="6" height="6" fill="{HIT_FILL}"/>'
+             f'<line x1="0" y1="0" x2="0" y2="6" stroke="{HIT_LINE}" stroke-width="2"/></pattern></defs>']
+    label_every = 1 if n <= 25 else (5 if n <= 100 else 10)
+    for k in range(1, n + 1):
+        if k == 1 or k == n or k % label_every == 0:
+            parts.append(_text_block(left + step * (k - 0.5), 30, [str(k)], 10, "normal", "middle", MUTED))
+    descs = []
+    for i, f in enumerate(rows):
+        s = f["structural"]
+        o = s.get("overlap") or {}
+        y = 44 + i * row_h
+        kind = s.get("type")
+        hit = set(o.get("exons") or [])
+        parts.append(f'<line x1="{left}" y1="{y + 9}" x2="{W - right}" y2="{y + 9}" stroke="{LINE}"/>')
+        for k in range(1, n + 1):
+            x = left + step * (k - 1) + 1
+            fill, stroke = BOX, LINE
+            if k in hit and kind == "DEL":
+                fill, stroke = f"url(#{fig_id}-hatch)", HIT_LINE
+            elif k in hit and kind in ("DUP", "INV", "INS"):
+                fill, stroke = HIT_FILL, HIT_LINE
+            parts.append(f'<rect x="{x:.1f}" y="{y}" width="{max(1.5, step - 2):.1f}" height="18" fill="{fill}" '
+                         f'stroke="{stroke}"/>')
+        if kind == "BND":
+            where = (o.get("exons") or [None])[0]
+            intron = (o.get("introns") or [None])[0]
+            xb = left + step * (where - 0.5) if where else (left + step * intron if intron else None)
+            if xb is not None:
+                parts.append(f'<line x1="{xb:.1f}" y1="{y - 4}" x2="{xb:.1f}" y2="{y + 22}" stroke="{HIT_LINE}" '
+                             'stroke-width="3"/>')
+        verb = {"DEL": "deleted", "DUP": "duplicated", "INV": "inverted", "INS": "insertion in"}.get(kind, "breakpoint")
+        from irdtriage.sv.overlap import exon_ranges
+
+        what = f"{verb} exons {exon_ranges(sorted(hit))}" if hit else (
+            f"breakpoint in intron {o['introns'][0]}" if o.get("introns") and kind == "BND" else
+            f"{s.get('extent')}")
+        parts.append(_text_block(left - 8, y + 13, [f"{f.get('id')} {kind}"], 12, "bold", "end", INK))
+        descs.append(f"{f.get('id')}: {what}")
+    parts.append(_text_block(left, H - 8, ["hatched: deleted; filled: duplicated or inverted; bar: breakpoint; "
+                                           "boxes are exon numbers, not lengths"], 11, "normal", "start", MUTED))
+    sym = gene.get("symbol", "?")
+    title = f"{sym} exons ({tx}, {n} exons) with the copy-number and structural findings"
+    head, tail = _svg_open(W, H, title, "; ".join(descs) + ".", fig_id)
+    return head + "".join(parts) + tail

@@ -102,10 +102,42 @@ def pvs1_structural(svtype: str, tandem: Optional[bool], o: GeneOverlap, gene: G
     return _pvs1(None, None, f"{o.words}: the PVS1 tree has no branch for a {svtype} event", **ev)
 
 
+def pvs1_breakend(o: GeneOverlap, gene: Gene) -> CriterionResult:
+    """PVS1 for a rearrangement breakpoint (translocation, inversion or other junction) in ``gene``.
+
+    The SVI tree (Abou Tayoun 2018) has no branch for a breakpoint that severs a gene.  A reasoned
+    call (common practice, from memory): a breakpoint between the first and last coding base
+    separates the 3' part of the coding sequence from the promoter, like a truncation whose NMD
+    cannot be predicted (the 5' part reads into unknown partner sequence), so the tree's
+    "NMD not predicted" truncation branch is followed: Strong when more than 10 % of the coding
+    sequence lies 3' of the break, else Moderate.  Outside the coding span, not applied."""
+    ev = {"extent": o.extent, "exons": list(o.exons), "introns": list(o.introns), "in_cds": o.in_cds,
+          "protein_fraction": o.protein_fraction, "basis": "reasoned call (common practice, from memory)"}
+    gate = pvs1_gate(gene)
+    if gate:
+        return _pvs1(False, None, f"{o.words}; PVS1 not applied: {gate}", **ev)
+    if o.extent == "structure unknown":
+        return _pvs1(None, None, f"{o.words}; PVS1 needs the exon structure", **ev)
+    if not o.in_cds:
+        return _pvs1(False, None, f"{o.words}; the coding sequence is not severed, so PVS1 is not applied (an effect "
+                                  "on expression would need an RNA study)", **ev)
+    limit = float(load_settings()["pvs1"]["protein_fraction_strong"])
+    why = ("the tree has no branch for a severed gene; the break is read as a truncation with NMD not predictable "
+           f"(reasoned call, common practice, from memory; {TREE})")
+    frac = o.protein_fraction
+    if frac is not None and frac > limit:
+        return _pvs1(True, "Strong", f"{o.words}; {frac * 100:.1f} % of the coding sequence lies 3' of the break "
+                                     f"(> {limit * 100:.0f} %): Strong - {why}; confirm the breakpoint by long reads "
+                                     "or breakpoint PCR", **ev)
+    pct = "an unknown share" if frac is None else f"{frac * 100:.1f} %"
+    return _pvs1(True, "Moderate", f"{o.words}; {pct} of the coding sequence lies 3' of the break (<= "
+                                   f"{limit * 100:.0f} % or unknown): Moderate - {why}", **ev)
+
+
 def criteria(svtype: str, tandem: Optional[bool], o: GeneOverlap, gene: Gene) -> dict[str, CriterionResult]:
     """All 28 codes for the event in ``gene`` (automated part; family/phenotype criteria come later)."""
     out: dict[str, CriterionResult] = {}
-    out["PVS1"] = pvs1_structural(svtype, tandem, o, gene)
+    out["PVS1"] = pvs1_breakend(o, gene) if svtype == "BND" else pvs1_structural(svtype, tandem, o, gene)
     out["PM2"] = CriterionResult("PM2", None, None,
                                  "not evaluable: no population data for structural events is read by this version "
                                  "(a population structural-variant set such as gnomAD-SV would settle it)")
@@ -136,8 +168,12 @@ def riggs_class(total: float) -> str:
     return "Uncertain significance"
 
 
-def riggs_points(svtype: str, o: GeneOverlap, gene: Gene, pvs1: CriterionResult) -> Optional[dict[str, Any]]:
-    """Section points for a copy-number loss (DEL) or gain (DUP) in ``gene``; None for other events."""
+def riggs_points(svtype: str, o: GeneOverlap, gene: Gene, pvs1: CriterionResult,
+                 gene_count: int = 1) -> Optional[dict[str, Any]]:
+    """Sections 1-4 for a copy-number loss (DEL) or gain (DUP) in ``gene``; None for other events.
+
+    ``gene_count``: panel genes the event reaches (section 3 counts protein-coding genes, of which
+    the panel genes are a lower bound).  Section 5 needs the family: :func:`riggs_family`."""
     if svtype not in ("DEL", "DUP"):
         return None
     cfg = load_settings()["riggs"]
@@ -185,8 +221,110 @@ def riggs_points(svtype: str, o: GeneOverlap, gene: Gene, pvs1: CriterionResult)
         elif not (o.five_prime_end or o.three_prime_end):
             add("2I", table["2I"][strength or "none"],
                 f"both breakpoints within {gene.symbol}: points of PVS1 {strength or 'not met'} ({pvs1.reason})")
-    add("3", 0.0, "gene count: only panel genes are known here; not scored")
-    add("4-5", 0.0, "case-level and family evidence (sections 4 and 5): not scored by this version")
-    total = round(sum(s["points"] for s in sections), 2)
-    return {"kind": kind, "sections": sections, "total": total, "classification": riggs_class(total),
-            "source": cfg["source"]}
+    # Section 3: the band of the gene count.  Only panel genes are known here, a lower bound of the
+    # protein-coding genes in the interval, so a band is never overstated.
+    band = [b for b in table["section3"] if gene_count >= b["min_genes"]][-1]
+    nxt = [b for b in table["section3"] if b["min_genes"] > gene_count]
+    more = (f"; a larger count would reach {nxt[0]['code']} ({nxt[0]['min_genes']} or more genes, "
+            f"{nxt[0]['points']:+.2f}): count the RefSeq protein-coding genes of the interval") if nxt else ""
+    add(band["code"], band["points"], f"at least {gene_count} protein-coding gene{'s' if gene_count != 1 else ''} "
+                                      f"wholly or partially in the {kind} (panel genes; genes outside the panel are "
+                                      f"not known to this tool){more}")
+    # Section 4: "skip to section 5" when section 2 found an established dosage-sensitive gene;
+    # otherwise its categories need reported cases, segregation studies, case-control and
+    # population CNV data that a panel tool does not hold.
+    hit = [x for x in sections if x["section"][:2] in ("2A", "2C", "2D", "2E", "2I") and x["points"] > 0]
+    if hit:
+        add("4", 0.0, f"skipped: section 2 ({hit[0]['section']}) already scored an established "
+                      f"{'haploinsufficient' if kind == 'loss' else 'dosage-sensitive'} gene, and the table then "
+                      "continues with section 5")
+    else:
+        add("4", 0.0, "not evaluable without case literature: 4A-4N need reported probands, segregation or "
+                      "case-control studies and 4O population copy-number data, none of which this tool reads; "
+                      "a reviewer may add them")
+    return _total({"kind": kind, "sections": sections, "source": cfg["source"]})
+
+
+def _total(riggs: dict[str, Any]) -> dict[str, Any]:
+    riggs["total"] = round(sum(x["points"] for x in riggs["sections"]), 2)
+    riggs["classification"] = riggs_class(riggs["total"])
+    return riggs
+
+
+def riggs_family(riggs: Optional[dict[str, Any]], gene: Gene, calls: dict[str, Any], proband: str,
+                 mother: Optional[str], father: Optional[str], affected: dict[str, Optional[bool]],
+                 specific_phenotype: bool) -> Optional[dict[str, Any]]:
+    """Section 5 (inheritance pattern and family history) added to ``riggs`` from the same event's
+    calls in the relatives (``calls``: sample -> :class:`irdtriage.models.Call`; ``affected``:
+    PED status by sample).
+
+    A carrier parent of a recessive gene is expected, so 5B/5C (inherited from an apparently
+    unaffected parent) and 4J/4K (unaffected carrier relatives) are applied only to genes where
+    one copy lost causes the retinal disease (dominant loss of function); for the others the
+    family evidence is weighed by the genotype fit and the ACMG/AMP family criteria."""
+    if riggs is None:
+        return None
+    riggs["sections"] = [x for x in riggs["sections"] if not x["section"].startswith("5")]
+    table = load_settings()["riggs"][riggs["kind"]]["section5"]
+    dominant = haploinsufficient(gene)
+    sections = riggs["sections"]
+
+    def add(code: str, points: float, reason: str) -> None:
+        sections.append({"section": code, "points": points, "reason": reason})
+
+    def carries(sample: str) -> Optional[bool]:
+        c = calls.get(sample)
+        if c is None or c.zygosity == "no call":
+            return None
+        return c.alt_copies > 0
+
+    parents = [p for p in (mother, father) if p]
+    typed = {p: carries(p) for p in parents}
+    relatives = [s for s in calls if s != proband and s not in parents]
+    seg = sorted(s for s in relatives if affected.get(s) is True and carries(s) is True)
+    seg += [p for p in parents if affected.get(p) is True and typed[p] is True]
+    nonseg = sorted(s for s in list(relatives) + parents if affected.get(s) is True and carries(s) is False)
+    scored = False
+    if len(parents) == 2 and all(v is False for v in typed.values()):
+        add("5A", 0.0, f"de novo by the parents' calls ({', '.join(parents)} do not carry it; parentage not "
+                       "confirmed): 5A takes the points of the de novo categories 4A-4D, which need reported cases "
+                       "with the same gene or region - a reviewer assigns them (0.15 to 0.45 for a specific "
+                       "phenotype)")
+        scored = True
+    unaffected_parents = [p for p in parents if typed.get(p) is True and affected.get(p) is False]
+    if unaffected_parents:
+        code = "5B" if specific_phenotype else "5C"
+        words = "specific" if specific_phenotype else "nonspecific"
+        who = ", ".join(unaffected_parents)
+        if dominant:
+            add(code, table[code], f"inherited from the apparently unaffected parent {who}; the patient's phenotype "
+                                   f"is {words} (HPO terms {'given' if specific_phenotype else 'not given'})")
+        else:
+            add(code, 0.0, f"inherited from the apparently unaffected parent {who}: expected for a carrier of a "
+                           f"recessive condition of {gene.symbol}, so {code} (built for dosage-sensitive genes) is not "
+                           "applied; the genotype fit and PM3 weigh it")
+        scored = True
+    if seg:
+        bands = [b for b in table["segregations"] if len(seg) >= b["min"]]
+        pts = bands[-1]["points"] if bands else 0.0
+        need = "" if bands else f"; 4F-4H start at {table['segregations'][0]['min']} segregations"
+        add("5D", pts, f"segregates with the phenotype in {len(seg)} affected relative{'s' if len(seg) != 1 else ''} "
+                       f"({', '.join(seg)}){need}")
+        scored = True
+    if nonseg:
+        add("5E", table["4I"], f"not found in the affected relative{'s' if len(nonseg) != 1 else ''} "
+                              f"{', '.join(nonseg)} (4I, per family; a phenocopy or a second cause in the family "
+                              "would lift it)")
+        scored = True
+    carriers_unaff = sorted(s for s in relatives if affected.get(s) is False and carries(s) is True)
+    if carriers_unaff and dominant:
+        code = "4J" if specific_phenotype else "4K"
+        add("5E", table[code], f"found in the unaffected relative{'s' if len(carriers_unaff) != 1 else ''} "
+                               f"{', '.join(carriers_unaff)} ({code}, per family)")
+        scored = True
+    if not scored:
+        why = ("no parent's call of the event" if not any(v is not None for v in typed.values())
+               else "the relatives' calls do not place it")
+        add("5F", table["5F"], f"inheritance information is unavailable or uninformative ({why}); 5G/5H need "
+                               "comparison with described cases")
+    return _total(riggs)

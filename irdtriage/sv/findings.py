@@ -52,6 +52,8 @@ def consequence(svtype: str, o: overlap.GeneOverlap) -> str:
         return {"out of frame": "frameshift_variant", "in frame": "inframe_insertion"}.get(o.frame or "", "exon_variant")
     if svtype == "INV":
         return "inversion"
+    if svtype == "BND":
+        return "feature_truncation" if o.in_cds else "structural_variant"
     return "structural_variant"
 
 
@@ -65,9 +67,66 @@ def carried(ev: intake.StructuralEvent, sample: str) -> bool:
 
 
 def describe_event(ev: intake.StructuralEvent) -> str:
+    if ev.svtype == "BND":
+        return f"BND {ev.chrom}:{ev.start} ({ev.alt})"
     size = f"{ev.length:,} bp" if ev.length else "size unknown"
     cn = f", copy number {ev.copy_number}" if ev.copy_number is not None else ""
     return f"{ev.svtype} {ev.where()} ({size}{cn})"
+
+
+def _note(ev: intake.StructuralEvent, o: overlap.GeneOverlap, proband: str, riggs, extra=None) -> dict[str, Any]:
+    info = {
+        "type": ev.svtype, "alt": ev.alt, "chrom": ev.chrom, "start": ev.start, "end": ev.end,
+        "length": ev.length, "svlen": ev.svlen, "copy_number": ev.copy_number, "tandem": ev.tandem,
+        "source": ev.source, "line": ev.line, "genotype_from_copy_number": bool(
+            (ev.samples.get(proband) or {}).get("from_cn")),
+        "summary": f"{describe_event(ev)}: {o.words}",
+        "overlap": o.to_dict(), "exons": list(o.exons), "extent": o.extent, "frame": o.frame,
+        "nmd": o.nmd, "riggs": riggs, "next_step": CONFIRM if ev.svtype != "BND" else CONFIRM_BREAKPOINT,
+    }
+    info.update(extra or {})
+    return info
+
+
+CONFIRM_BREAKPOINT = ("confirm the rearrangement and its breakpoint by an orthogonal method (long-read sequencing, "
+                      "breakpoint PCR or karyotype/FISH for a translocation) and test the parents")
+
+
+def _finding(ev: intake.StructuralEvent, variant: Variant, symbol: str, o: overlap.GeneOverlap, build: str,
+             auto: dict[str, CriterionResult], info: dict[str, Any]) -> Finding:
+    ann = Annotation(gene=symbol, transcript=o.transcript, consequence=(consequence(ev.svtype, o),),
+                     hgvs_c=o.hgvs_c, source="structure", is_mane=False,
+                     extra={"exons": list(o.exons), "exon_count": o.exon_count})
+    flags = []
+    if ev.filters and tuple(ev.filters) != ("PASS",):
+        flags.append("FILTER=" + ";".join(x for x in ev.filters if x != "PASS"))
+    f = Finding(id="", variant=variant, gene=symbol, annotation=ann, quality_flags=tuple(flags),
+                evidence={"build": build})
+    f.structural = StructuralNote(info, auto)
+    return f
+
+
+def _breakend_findings(ev: intake.StructuralEvent, variant: Variant, panel: Panel, build: str, proband: str,
+                       warnings: list[str]) -> list[Finding]:
+    """A breakend inside a panel gene: the gene disrupted at that breakpoint (translocation,
+    inversion or other junction, from the ALT's form and mate)."""
+    bnd = ev.breakend
+    junction = bnd.junction(ev.chrom_bare, ev.start) if bnd is not None else "breakend"
+    out = []
+    for symbol in ev.genes:
+        gene = panel.genes.get(symbol)
+        if gene is None:
+            continue
+        o = overlap.breakend_overlap(ev.start, gene, build, junction)
+        if o.extent == "outside the transcript":
+            warnings.append(f"{describe_event(ev)} {o.words}: not assessed as a {symbol} allele")
+            continue
+        auto = classify.criteria("BND", None, o, gene)
+        extra = {"breakend": {"form": bnd.form if bnd else None, "mate_chrom": bnd.mate_chrom if bnd else None,
+                              "mate_pos": bnd.mate_pos if bnd else None, "mate_id": bnd.mate_id if bnd else None,
+                              "junction": junction}}
+        out.append(_finding(ev, variant, symbol, o, build, auto, _note(ev, o, proband, None, extra)))
+    return out
 
 
 def make_findings(raw_events: Iterable[dict[str, Any]], variants: Iterable[Variant], panel: Panel, build: str,
@@ -80,16 +139,10 @@ def make_findings(raw_events: Iterable[dict[str, Any]], variants: Iterable[Varia
     end)``: panel genes over an interval (``irdtriage.panel.GeneLocator.genes_at``).
     """
     from ..genotype import settle_zygosity
-    from ..vcf import structural_warnings
-
     events: list[intake.StructuralEvent] = []
     warnings: list[str] = []
     for raw in raw_events:
-        ev = intake.normalise_record(raw, path)
-        if ev is None:
-            warnings.extend(structural_warnings([raw]))  # breakends: listed for review
-            continue
-        events.append(ev)
+        events.append(intake.normalise_record(raw, path))
     consumed: set[int] = set()
     for v in variants:
         c = v.calls.get(proband)
@@ -108,36 +161,24 @@ def make_findings(raw_events: Iterable[dict[str, Any]], variants: Iterable[Varia
             continue
         variant = intake.to_variant(ev)
         settle_zygosity([variant], sexes, build)  # male chrX outside the PARs: one copy (hemizygous)
+        if ev.svtype == "BND":
+            out.extend(_breakend_findings(ev, variant, panel, build, proband, warnings))
+            continue
+        overlaps = {}
         for symbol in ev.genes:
             gene = panel.genes.get(symbol)
-            if gene is None:
-                continue
-            o = overlap.gene_overlap(ev.svtype, ev.start, ev.end, gene, build, length=ev.length)
+            if gene is not None:
+                overlaps[symbol] = overlap.gene_overlap(ev.svtype, ev.start, ev.end, gene, build, length=ev.length)
+        reached = sum(1 for o in overlaps.values() if o.extent != "outside the transcript")
+        for symbol, o in overlaps.items():
+            gene = panel.genes[symbol]
             if o.extent == "outside the transcript":
                 warnings.append(f"{describe_event(ev)} {o.words}: not assessed as a {symbol} allele; review it "
                                 "if a regulatory element may be involved")
                 continue
             auto = classify.criteria(ev.svtype, ev.tandem, o, gene)
-            riggs = classify.riggs_points(ev.svtype, o, gene, auto["PVS1"])
-            ann = Annotation(gene=symbol, transcript=o.transcript, consequence=(consequence(ev.svtype, o),),
-                             hgvs_c=o.hgvs_c,
-                             source="structure", is_mane=False,
-                             extra={"exons": list(o.exons), "exon_count": o.exon_count})
-            flags = []
-            if ev.filters and tuple(ev.filters) != ("PASS",):
-                flags.append("FILTER=" + ";".join(x for x in ev.filters if x != "PASS"))
-            f = Finding(id="", variant=variant, gene=symbol, annotation=ann, quality_flags=tuple(flags),
-                        evidence={"build": build})
-            f.structural = StructuralNote({
-                "type": ev.svtype, "alt": ev.alt, "chrom": ev.chrom, "start": ev.start, "end": ev.end,
-                "length": ev.length, "svlen": ev.svlen, "copy_number": ev.copy_number, "tandem": ev.tandem,
-                "source": ev.source, "line": ev.line, "genotype_from_copy_number": bool(
-                    (ev.samples.get(proband) or {}).get("from_cn")),
-                "summary": f"{describe_event(ev)}: {o.words}",
-                "overlap": o.to_dict(), "exons": list(o.exons), "extent": o.extent, "frame": o.frame,
-                "nmd": o.nmd, "riggs": riggs, "next_step": CONFIRM,
-            }, auto)
-            out.append(f)
+            riggs = classify.riggs_points(ev.svtype, o, gene, auto["PVS1"], gene_count=max(reached, 1))
+            out.append(_finding(ev, variant, symbol, o, build, auto, _note(ev, o, proband, riggs)))
     return out, warnings, consumed
 
 

@@ -24,6 +24,7 @@ and line (or the record, for indexed reads).
 """
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import Any, Iterable, Optional
 
@@ -32,6 +33,36 @@ from ..models import Call, Variant
 from .settings import load_settings
 
 COPY_TYPES = ("DEL", "DUP", "CNV")
+
+
+@dataclass(frozen=True)
+class Breakend:
+    """A VCF 4.3 section 5.4 breakend ALT: ``t[p[``, ``t]p]``, ``]p]t``, ``[p[t`` (joined to the
+    mate at ``mate_chrom:mate_pos``) or a single breakend ``t.`` / ``.t`` (mate unknown)."""
+
+    form: str  # "t[p[", "t]p]", "]p]t", "[p[t", "t." or ".t"
+    mate_chrom: Optional[str]
+    mate_pos: Optional[int]
+    mate_id: Optional[str] = None
+
+    @property
+    def reverse_complement(self) -> bool:
+        """The joined piece is read reverse-complemented (t]p] and [p[t): an inversion junction when
+        the mate is on the same chromosome."""
+        return self.form in ("t]p]", "[p[t")
+
+    def junction(self, chrom_bare: str, pos: int) -> str:
+        """Kind of rearrangement one junction implies (VCF 4.3 section 5.4 examples)."""
+        if self.mate_chrom is None:
+            return "single breakend (partner unknown)"
+        mate = self.mate_chrom[3:] if self.mate_chrom.lower().startswith("chr") else self.mate_chrom
+        if mate != chrom_bare:
+            return f"translocation junction with {self.mate_chrom}:{self.mate_pos}"
+        if self.reverse_complement:
+            return f"inversion junction with {self.mate_chrom}:{self.mate_pos}"
+        ahead = (self.mate_pos or 0) > pos
+        kind = "deletion" if ahead == (self.form == "t[p[") else "duplication"
+        return f"{kind}-type junction with {self.mate_chrom}:{self.mate_pos} (same chromosome)"
 
 
 @dataclass
@@ -54,6 +85,7 @@ class StructuralEvent:
     filters: tuple[str, ...] = ()
     samples: dict[str, dict[str, Any]] = field(default_factory=dict)  # gt, phased, phase_set, dp, gq, cn
     original_ref: str = ""
+    breakend: Optional[Breakend] = None  # BND records: the parsed ALT
 
     @property
     def chrom_bare(self) -> str:
@@ -66,6 +98,32 @@ class StructuralEvent:
 
     def where(self) -> str:
         return f"{self.chrom}:{self.start}-{self.end}"
+
+
+_BND_FORMS = (
+    (re.compile(r"([ACGTN]+)\[([^\[\]:]+):(\d+)\[", re.I), "t[p["),
+    (re.compile(r"([ACGTN]+)\]([^\[\]:]+):(\d+)\]", re.I), "t]p]"),
+    (re.compile(r"\]([^\[\]:]+):(\d+)\]([ACGTN]+)", re.I), "]p]t"),
+    (re.compile(r"\[([^\[\]:]+):(\d+)\[([ACGTN]+)", re.I), "[p[t"),
+)
+
+
+def parse_breakend(alt: str) -> Optional[Breakend]:
+    """The breakend an ALT string describes, or None when it is not a well-formed breakend."""
+    a = alt.strip()
+    if re.fullmatch(r"[ACGTN]+\.", a, re.I):
+        return Breakend("t.", None, None)
+    if re.fullmatch(r"\.[ACGTN]+", a, re.I):
+        return Breakend(".t", None, None)
+    for rx, form in _BND_FORMS:
+        m = rx.fullmatch(a)
+        if m is not None:
+            g = m.groups()
+            chrom, pos = (g[1], g[2]) if form.startswith("t") else (g[0], g[1])
+            if int(pos) < 1:
+                return None
+            return Breakend(form, chrom, int(pos))
+    return None
 
 
 def _info_fields(text: str) -> dict[str, str]:
@@ -86,9 +144,9 @@ def _int_list(value: str, what: str, fail) -> list[int]:
         return []
 
 
-def normalise_record(ev: dict[str, Any], path: str) -> Optional[StructuralEvent]:
-    """One symbolic record (a ``VcfIntake.structural_events`` dict) as an event; None for a
-    breakend (not an interval on one chromosome: listed for review by the caller)."""
+def normalise_record(ev: dict[str, Any], path: str) -> StructuralEvent:
+    """One symbolic record (a ``VcfIntake.structural_events`` dict) as an event; a breakend
+    (``BND``) becomes a one-base event at POS carrying its parsed ALT (:class:`Breakend`)."""
     line = ev.get("line")
     named = "" if line else f"record {ev['chrom']}:{ev['pos']} {ev['alt']}: "
 
@@ -109,7 +167,7 @@ def normalise_record(ev: dict[str, Any], path: str) -> Optional[StructuralEvent]
             fail(f"unknown structural type: ALT {alt} and no SVTYPE (VCF 4.3 lists {', '.join(known)})")
         svtype = alt_type
     if alt_type == "BND" or svtype == "BND":
-        return None
+        return _breakend_event(ev, alt, alt_type, pos, info, fail)
     if alt_type not in known:
         fail(f"unknown symbolic ALT {alt} (VCF 4.3 lists {', '.join('<' + k + '>' for k in known if k != 'BND')})")
     if alt_type != svtype and not (alt_type == "CNV" and svtype in ("DEL", "DUP")) \
@@ -146,6 +204,32 @@ def normalise_record(ev: dict[str, Any], path: str) -> Optional[StructuralEvent]
         svlen=svlen, length=length, copy_number=proband_cn, genes=tuple(ev.get("genes") or ()),
         vcf_id=ev.get("id"), qual=ev.get("qual"), filters=tuple(ev.get("filters") or ()), samples=samples,
         original_ref=str(ev.get("ref") or ""))
+
+
+def _breakend_event(ev: dict[str, Any], alt: str, alt_type: str, pos: int, info: dict[str, str],
+                    fail) -> StructuralEvent:
+    if alt_type != "BND":
+        fail(f"SVTYPE BND needs a breakend ALT (t[p[, t]p], ]p]t, [p[t, t. or .t), not {alt}")
+    bnd = parse_breakend(alt)
+    if bnd is None:
+        fail(f"malformed breakend ALT {alt[:40]!r}: VCF 4.3 section 5.4 writes t[p[, t]p], ]p]t or [p[t with p "
+             "as chrom:pos (or t. / .t for a single breakend), t the REF base(s)")
+    ref = str(ev.get("ref") or "")
+    t = alt.split("[")[0].split("]")[0] if bnd.form in ("t[p[", "t]p]") else (
+        alt.rsplit("[", 1)[-1].rsplit("]", 1)[-1] if bnd.form in ("]p]t", "[p[t") else alt.strip("."))
+    if ref and t and t[:1].upper() != ref[:1].upper() and t[-1:].upper() != ref[-1:].upper():
+        fail(f"breakend ALT {alt[:40]!r} does not carry the REF base {ref[:1]} (VCF 4.3 section 5.4)")
+    if bnd.mate_chrom and bnd.mate_chrom.startswith("CHR"):
+        # the VCF reader upper-cases non-symbolic ALTs; UCSC-style contig names are written "chr..."
+        mate = "chr" + bnd.mate_chrom[3:]
+        alt = alt.replace(bnd.mate_chrom + ":", mate + ":", 1)
+        bnd = Breakend(bnd.form, mate, bnd.mate_pos)
+    bnd = Breakend(bnd.form, bnd.mate_chrom, bnd.mate_pos, info.get("MATEID") or None)
+    return StructuralEvent(
+        chrom=str(ev["chrom"]), start=pos, end=pos, svtype="BND", alt=alt, record_pos=pos, line=ev.get("line"),
+        genes=tuple(ev.get("genes") or ()), vcf_id=ev.get("id"), qual=ev.get("qual"),
+        filters=tuple(ev.get("filters") or ()), samples=dict(ev.get("samples") or {}),
+        original_ref=str(ev.get("ref") or ""), breakend=bnd)
 
 
 def from_sequence(v: Variant, genes: Iterable[str]) -> Optional[StructuralEvent]:

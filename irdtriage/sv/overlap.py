@@ -23,7 +23,7 @@ from .. import transcripts as tx_mod
 from ..models import Gene
 
 EXTENTS = ("whole gene", "exons", "partial exon", "within one exon", "intronic only", "outside the transcript",
-           "structure unknown")
+           "structure unknown", "breakpoint")
 
 
 @dataclass
@@ -47,6 +47,7 @@ class GeneOverlap:
     three_prime_end: bool = False
     words: str = ""
     hgvs_c: str = ""  # HGVS c. of a deletion/duplication with both ends on the transcript, from the breakpoints
+    in_cds: Optional[bool] = None  # breakends: the breakpoint lies between the first and last coding base
 
     def _finish(self) -> "GeneOverlap":
         """Add frame and NMD to the plain-words summary."""
@@ -258,3 +259,58 @@ def _insertion(o: GeneOverlap, tx: tx_mod.Transcript, after: int, length: int, v
     o.words = f"inserts {length or 'an unknown number of'} bp into intron {exon_ranges(introns)} of {label}: no exon involved"
     return o
 
+
+
+def breakend_overlap(pos: int, gene: Gene, build: str, junction: str,
+                     model: Optional[tx_mod.TranscriptModel] = None) -> GeneOverlap:
+    """Where a breakpoint at ``pos`` falls in ``gene``'s panel transcript ("breakpoint within intron
+    N / exon N of GENE"), whether it lies inside the coding span, and whether NMD is expected for
+    the 5' part of the severed transcript (the break lies before the penultimate exon's last 50 nt:
+    the same exon-based reading as for frameshifts, :func:`irdtriage.transcripts.nmd_predicted`)."""
+    m = model if model is not None else tx_mod.default_model()
+    tx = m.get(gene.symbol, build)
+    if tx is None and build == "GRCh38" and m.coding_for(gene.symbol) is not None:
+        tx = m.coding_for(gene.symbol).transcript_model()
+    o = GeneOverlap(gene.symbol)
+    if tx is None or not tx.exons:
+        o.words = (f"{junction}: a breakpoint in the {gene.symbol} region; the panel has no exon structure for "
+                   f"{gene.symbol} on {build}, so the exon or intron is not named")
+        return o
+    o.transcript, o.exon_count = tx.refseq or tx.ensembl, tx.exon_count
+    label = f"{gene.symbol} ({o.transcript})"
+    hit = tx_mod.locate_in(tx, pos)
+    if hit is None:
+        o.extent = "outside the transcript"
+        o.words = f"{junction}: the breakpoint lies outside {label}"
+        return o
+    o.extent = "breakpoint"
+    if hit.in_exon:
+        o.exons = (hit.exon_number,)
+        where = f"exon {hit.exon_number}"
+    else:
+        o.introns = (hit.intron_number,)
+        where = f"intron {hit.intron_number}"
+    o.includes_last_exon = hit.in_exon and hit.exon_number == hit.exon_count
+    in_cds = bool(tx.has_cds and tx.cds_start <= pos <= tx.cds_end)
+    o.in_cds = in_cds
+    if in_cds:
+        lo, hi = tx.exons[0][0], tx.exons[-1][1]
+        three = (pos + 1, hi) if tx.strand == "+" else (lo, pos - 1)
+        o.coding_nt = _coding_overlap(tx, *three)
+        cds_len = _cds_length(tx)
+        if cds_len and o.coding_nt is not None:
+            o.protein_fraction = round(o.coding_nt / cds_len, 4)
+        o.frame_reason = ("the breakpoint severs the coding sequence: the part 3' of it is separated from the "
+                          "promoter and joined to other sequence")
+        o.nmd_reason = ("the 5' part reads into the partner sequence, whose stops and exon junctions are unknown: "
+                        "NMD cannot be predicted")
+    else:
+        o.frame_reason = "the breakpoint lies outside the coding span (untranslated region)"
+    o.words = f"breakpoint within {where} of {label} ({junction})"
+    if in_cds:
+        share = f" ({o.protein_fraction * 100:.1f} % of the coding sequence lies 3' of it)" \
+            if o.protein_fraction is not None else ""
+        o.words += f", inside the coding span: the gene is disrupted{share}"
+    else:
+        o.words += ", outside the coding span"
+    return o

@@ -103,3 +103,28 @@ def test_ush2a_exon_deletion_frame_follows_the_refseqgene_cds(k, m):
     o = gene_overlap("DEL", start, end, load_panel().genes["USH2A"], "GRCh38")
     assert o.exons == tuple(range(k, m + 1)), o.words
     assert o.coding_nt == coding and o.frame == expected, (o.coding_nt, coding, o.words)
+
+
+MANE = REFDATA / "mane" / "MANE.GRCh38.v1.5.summary.txt.gz"
+
+
+def test_grch38_chromosome_accessions_match_the_mane_summary():
+    # MANE v1.5 summary, column GRCh38_chr: the RefSeq accession of each gene's GRCh38 chromosome.
+    # The phenopacket's VRS sequence ids (panels/structural.yaml chromosome_accessions) must agree.
+    from irdtriage.sv.settings import load_settings
+
+    if not MANE.is_file():
+        pytest.skip("../shared/refdata/mane/MANE.GRCh38.v1.5.summary.txt.gz not present (outside data)")
+    ours = load_settings()["chromosome_accessions"]["GRCh38"]
+    seen = set()
+    with gzip.open(MANE, "rt") as fh:
+        head = fh.readline().lstrip("#").rstrip("\n").split("\t")
+        col = head.index("GRCh38_chr")
+        for line in fh:
+            acc = line.rstrip("\n").split("\t")[col]
+            if acc.startswith("NC_0000"):
+                seen.add(acc)
+    number = {acc: str(int(acc[3:9])) for acc in seen}
+    by_chrom = {("X" if n == "23" else "Y" if n == "24" else n): acc for acc, n in number.items()}
+    assert len(by_chrom) == len(seen)  # one version per chromosome in MANE
+    assert {c: ours[c] for c in by_chrom} == by_chrom
