@@ -15,6 +15,8 @@ import yaml
 
 from .errors import InputError
 
+_Loader = getattr(yaml, "CSafeLoader", yaml.SafeLoader)  # libyaml when available
+
 
 def package_data_path(name: str) -> Path:
     """The bundled ``panels/<name>`` (installed package data, else the repository's panels/)."""
@@ -32,8 +34,15 @@ def package_data_path(name: str) -> Path:
 def parse_yaml(text: str, path: str) -> tuple[Any, Any]:
     """(node, data) of YAML text; ``node`` is None for an empty document."""
     try:
-        node = yaml.compose(text)
-        data = yaml.safe_load(text)
+        # One pass through libyaml (when PyYAML has it): compose the node tree, then build the
+        # plain data from that same tree. Parsing twice with the pure-Python reader made the
+        # 15,000-line transcripts.yaml cost seconds at every start.
+        loader = _Loader(text)
+        try:
+            node = loader.get_single_node()
+            data = loader.construct_document(node) if node is not None else None
+        finally:
+            loader.dispose()
     except yaml.YAMLError as e:
         mark = getattr(e, "problem_mark", None)
         raise InputError(f"not valid YAML: {getattr(e, 'problem', e)}", path,
