@@ -180,6 +180,12 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         annotator = Annotator(opts.transcripts_path, opts.reference)
         warnings.append(annotator.describe() + ": used for records without CSQ/ANN")
         mane_ids = [a for g in panel.genes.values() for a in (g.refseq_transcript, g.ensembl_transcript) if a]
+    concordance = None
+    if annotator is not None and any(k in layouts for k in ("CSQ", "ANN")):
+        from .annotate.concordance import Concordance
+        from .consequence.annotations import all_annotations
+
+        concordance = Concordance(annotator.describe(), annotator.reference is not None)
     # copy-number and structural events (symbolic records, explicit alleles >= 50 bp): irdtriage.sv
     from .sv.findings import make_findings
 
@@ -211,6 +217,9 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         if annotator is not None and annotation.source == "none":
             built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here, mane_ids)
             annotation = built or annotation
+        elif concordance is not None:  # the VCF's own CSQ/ANN against the built-in annotation
+            concordance.add(variant, all_annotations(variant, layouts, panel),
+                            annotator.consequences(variant.chrom, variant.pos, variant.ref, variant.alt))
         gene_symbol = annotation.gene if annotation.gene in panel.genes else genes_here[0]
         if annotation.gene != gene_symbol:
             annotation.gene = gene_symbol
@@ -395,6 +404,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     )
     res["phenotype"]["term_changes"] = term_changes
     res["evidence_sources"] = evidence_sources
+    res["annotation_concordance"] = concordance.to_dict() if concordance is not None else None
     # what the input could not support, first in the result so every output shows it first
     return {"schema_version": res.pop("schema_version"), "input_limits": limits, **res}
 

@@ -263,6 +263,15 @@ def render_terminal(
         p(Text("Next steps", style=ST_HEAD))
         for s in steps:
             _ind(console, Text("- " + strip_provenance(s)), 2)  # continuation lines under the text, not the dash
+    conc = result.get("annotation_concordance")
+    if verbose and conc:  # the VCF's CSQ/ANN against the built-in annotation (irdtriage.annotate.concordance)
+        from ..annotate.concordance import difference_lines, summary_line
+
+        p()
+        p(Text("Annotation concordance", style=ST_HEAD))
+        _ind(console, Text(summary_line(conc)), 2)
+        for line in difference_lines(conc):
+            _ind(console, Text("≠ " + line, style=ST_DIM), 4)
     warnings = result.get("warnings") or []
     if warnings:
         p()
