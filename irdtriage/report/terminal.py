@@ -228,6 +228,10 @@ def render_terminal(
             p(Text("no gene hypothesis"))
         _ind(console, Text("CAUTION: " + cautions(result)[0], style=ST_CAUTION), hang=0)
         return
+    from ..evidence.describe import source_items  # evidence sources: "none given" rather than nothing
+
+    for label, text in source_items(result.get("evidence_sources")):
+        _ind(console, Text(f"{label}: {text}", style=ST_DIM), 2)
     _ind(console, Text(strip_provenance(case.get("summary"))), hang=0)
     p()
     p(Text("Gene hypotheses (ranked)", style=ST_HEAD))
