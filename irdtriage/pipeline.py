@@ -130,7 +130,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                         f"{'phenopacket subject' if sample == profile.subject_id else 'PED file, the one affected child with parents'})")
     intake = read_vcf(vcf_path, panel, sample=sample,
                       build=opts.build, padding=opts.padding, quality=quality,
-                      unannotated_intervals=None if opts.all_variants else exon_intervals)
+                      # built-in annotation tells coding from deep-intronic alleles: whole gene spans are read
+                      unannotated_intervals=None if opts.all_variants or opts.transcripts_path else exon_intervals)
     warnings.extend(intake.warnings)
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
@@ -169,7 +170,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     # only alleles in exons (+/- splice padding) of the genes become findings (see DEVELOPERS.md).
     regions = coding_regions.get("model")  # set when the VCF had no annotation and only exons were read
     outside_regions = 0
-    if regions is None and not layouts and not opts.all_variants:
+    if regions is None and not layouts and not opts.all_variants and not opts.transcripts_path:
         from .regions import CodingRegions, load_exons
 
         regions = CodingRegions(load_exons(), panel, intake.build)

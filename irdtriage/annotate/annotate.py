@@ -184,9 +184,14 @@ def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
         extra["stop_to_last_junction_nt"] = str(c.nmd_distance)
     if c.notes:
         extra["notes"] = "; ".join(c.notes)
-    # MANE Select only for the same accession.version (another version may encode another protein)
-    mane = {x for x in mane_ids}
-    is_mane = c.transcript in mane if "." in c.transcript else versionless(c.transcript) in {versionless(x) for x in mane}
+    # MANE Select by accession without version, as the CSQ/ANN reader decides it
+    # (irdtriage.consequence.annotations), so an annotated and an unannotated run of the same
+    # records reach the same criteria; another version of the MANE accession is named in extra.
+    by_acc = {versionless(x): x for x in mane_ids}
+    mane_acc = by_acc.get(versionless(c.transcript))
+    is_mane = mane_acc is not None
+    if is_mane and "." in c.transcript and "." in mane_acc and mane_acc != c.transcript:
+        extra["mane_select_version"] = mane_acc
     return Annotation(gene=c.gene, transcript=c.transcript, consequence=c.terms, hgvs_c=c.hgvs_c,
                       hgvs_p=c.hgvs_p, exon=c.exon, intron=c.intron, source=SOURCE,
                       is_mane=is_mane, extra=extra)
