@@ -201,6 +201,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         sv_findings += more
         warnings.extend(more_warnings)
     findings: list[models.Finding] = []
+    ref_mismatch: list[str] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)
         if call is None or call.alt_copies == 0 or id(variant) in sv_consumed:
@@ -216,8 +217,13 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                 continue
         annotation = pick_annotation(variant, layouts, panel, genes_here)
         if annotator is not None and annotation.source == "none":
-            built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here, mane_ids)
-            annotation = built or annotation
+            other = annotator.check_ref(variant.chrom, variant.pos, variant.ref)
+            if other is not None:  # wrong build or FASTA: no annotation rather than a wrong one
+                ref_mismatch.append(f"{variant.chrom}:{variant.pos} REF {variant.ref}, FASTA {other}")
+            else:
+                built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here,
+                                                 mane_ids)
+                annotation = built or annotation
         elif concordance is not None:  # the VCF's own CSQ/ANN against the built-in annotation
             concordance.add(variant, all_annotations(variant, layouts, panel),
                             annotator.consequences(variant.chrom, variant.pos, variant.ref, variant.alt))
@@ -233,6 +239,9 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         ))
     if annotator is not None:
         annotator.close()
+    if ref_mismatch:
+        warnings.append(f"{len(ref_mismatch)} allele(s) whose REF differs from the reference FASTA were left without "
+                        f"built-in annotation (is the FASTA of the VCF's build?), e.g. {ref_mismatch[0]}")
     findings.extend(sv_findings)
 
     # 6. evidence -------------------------------------------------------------------

@@ -148,3 +148,24 @@ def test_unannotated_with_reference_equals_annotated(ush2a):
     assert conc["alleles_compared"] == 5 and conc["alleles_differing"] == 0, conc["differences"]
     assert conc["fields"]["hgvs_c"] == {"compared": 5, "agreeing": 5, "differing": 0}
     assert conc["fields"]["hgvs_p"] == {"compared": 4, "agreeing": 4, "differing": 0}
+
+
+def test_ref_differing_from_the_fasta_is_not_annotated(ush2a):
+    """A record whose REF is not the reference FASTA's base (wrong build or FASTA) gets no built-in
+    annotation and the run says so (c.2276G>T written with the wrong REF)."""
+    tmp, region, fa, gff, exons, m = ush2a
+    pos = m.c_to_g("2276")
+    assert region.fetch("1", pos, pos) == "C"  # G on the minus-strand transcript (see PUBLISHED)
+    vcf = tmp / "wrong_ref.vcf"
+    vcf.write_text("##fileformat=VCFv4.2\n##reference=GRCh38\n##contig=<ID=chr1,length=248956422>\n"
+                   '##FORMAT=<ID=GT,Number=1,Type=String,Description="Genotype">\n'
+                   "#CHROM\tPOS\tID\tREF\tALT\tQUAL\tFILTER\tINFO\tFORMAT\tP1\n"
+                   f"chr1\t{pos}\t.\tG\tA\t60\tPASS\t.\tGT\t0/1\n")
+    out = tmp / "o_wrong"
+    r = cli("triage", str(vcf), "--out", str(out), "--reference", str(fa), "--transcripts", str(gff),
+            "--build", "GRCh38", "--genes", "USH2A", "--formats", "json", "--all-variants")
+    assert r.returncode == 0, r.stderr
+    res = json.loads((out / "result.json").read_text())
+    assert [f["annotation_source"] for f in res["findings"]] == ["none"]
+    assert any(w.startswith("1 allele(s) whose REF differs from the reference FASTA") and f"REF G, FASTA C" in w
+               for w in res["warnings"])
