@@ -27,6 +27,8 @@ from .providers import SequenceProvider, TranscriptProvider, TxModel, revcomp, v
 NMD_NT = 50
 SOURCE = "built-in"
 NO_SEQUENCE = "no reference sequence: amino-acid change unknown"
+BAD_ORF = ("the reference CDS of this transcript does not translate from ATG to one stop codon at its end "
+           "(wrong FASTA or transcript model?): amino-acid change unknown")
 
 
 @dataclass
@@ -56,6 +58,7 @@ class TxCache:
         self._maps: dict[str, TxMap] = {}
         self._tx_seq: dict[str, Optional[str]] = {}
         self._prot: dict[str, str] = {}
+        self._orf: dict[str, bool] = {}
 
     def map(self, tx: TxModel) -> TxMap:
         m = self._maps.get(tx.transcript_id)
@@ -74,6 +77,15 @@ class TxCache:
             s = m.transcript_sequence(self.seq)
             self._tx_seq[m.tx.transcript_id] = s if len(s) == m.length else None
         return self._tx_seq[m.tx.transcript_id]
+
+    def orf_ok(self, m: TxMap, tx_seq: str) -> bool:
+        """The reference CDS is one open reading frame: a multiple of 3 whose only stop is its last codon."""
+        ok = self._orf.get(m.tx.transcript_id)
+        if ok is None:
+            n = m.cds_end - m.cds_start + 1
+            prot = self.protein(m, tx_seq)
+            ok = self._orf[m.tx.transcript_id] = n % 3 == 0 and len(prot) * 3 == n and prot.endswith("*")
+        return ok
 
     def protein(self, m: TxMap, tx_seq: str) -> str:
         """The reference translation from c.1 to the first stop (kept)."""
@@ -131,12 +143,15 @@ def annotate_on(tx: TxModel, pos: int, ref: str, alt: str, cache: TxCache) -> Op
         if not pl.exonic_only:
             terms.append("coding_sequence_variant")
             res.hgvs_p = "p.?"
-        elif tx_seq is None:
+        elif tx_seq is None or not cache.orf_ok(m, tx_seq):
+            if tx_seq is not None:  # the model's CDS and the sequence disagree: no protein is predicted
+                res.notes.append(BAD_ORF)
             terms.append("frameshift_variant" if delta % 3 else
                          "inframe_insertion" if delta > 0 else "inframe_deletion" if delta < 0
                          else "coding_sequence_variant")
             res.hgvs_p = "p.?"
-            res.notes.append(NO_SEQUENCE)
+            if tx_seq is None:
+                res.notes.append(NO_SEQUENCE)
         else:
             alt_tx = revcomp(edit.alt) if m.minus else edit.alt
             pc = protein_change(tx_seq, m.cds_start, m.cds_end, pl.tx_first, pl.tx_last, alt_tx,

@@ -28,7 +28,7 @@ from urllib.parse import unquote
 
 from ..consequence.annotations import most_severe
 from ..models import Annotation, Variant
-from .annotate import NO_SEQUENCE, TxConsequence
+from .annotate import BAD_ORF, NO_SEQUENCE, TxConsequence
 from .hgvs_p import AA3
 from .providers import versionless
 
@@ -113,7 +113,7 @@ class Concordance:
         self.alleles_differing += differing_here
 
     def _compare(self, a: Annotation, c: TxConsequence) -> Optional[dict[str, dict[str, Any]]]:
-        no_seq = NO_SEQUENCE in c.notes
+        no_seq = NO_SEQUENCE in c.notes or BAD_ORF in c.notes
         diffs: dict[str, dict[str, Any]] = {}
         any_field = False
         # consequence: the most severe term of each side
