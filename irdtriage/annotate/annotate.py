@@ -182,7 +182,12 @@ def _nmd(m: TxMap, change_last: int, delta: int, stop_last: int) -> tuple[Option
 
 
 # ---------------------------------------------------------------------------------------------
-def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
+def mane_map(mane_ids: Iterable[str]) -> dict[str, str]:
+    """{accession without version: accession as given} of the MANE Select transcripts."""
+    return {versionless(x): x for x in mane_ids}
+
+
+def to_annotation(c: TxConsequence, mane_ids: Iterable[str] | dict[str, str] = ()) -> Annotation:
     # extra fields carry the names of the IRDT_TX layout (vcf_writer.FIELDS), read back the same way
     extra: dict[str, str] = {}
     if c.protein_position is not None:
@@ -202,7 +207,7 @@ def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
     # MANE Select by accession without version, as the CSQ/ANN reader decides it
     # (irdtriage.consequence.annotations), so an annotated and an unannotated run of the same
     # records reach the same criteria; another version of the MANE accession is named in extra.
-    by_acc = {versionless(x): x for x in mane_ids}
+    by_acc = mane_ids if isinstance(mane_ids, dict) else mane_map(mane_ids)
     mane_acc = by_acc.get(versionless(c.transcript))
     is_mane = mane_acc is not None
     if is_mane and "." in c.transcript and "." in mane_acc and mane_acc != c.transcript:
@@ -246,6 +251,8 @@ class Annotator:
         self.reference = FastaSequence(reference_path) if reference_path else None
         self.cache = TxCache(self.reference)
         self.transcripts_path, self.reference_path = transcripts_path, reference_path
+        self._mane_src: object = None
+        self._mane: dict[str, str] = {}
 
     def consequences(self, chrom: str, pos: int, ref: str, alt: str) -> list[TxConsequence]:
         return annotate_allele(chrom, pos, ref, alt, self.transcripts, self.cache)
@@ -260,7 +267,9 @@ class Annotator:
 
     def annotation_for(self, chrom: str, pos: int, ref: str, alt: str, candidate_genes: list[str],
                        mane_ids: Iterable[str]) -> Optional[Annotation]:
-        anns = [to_annotation(c, mane_ids) for c in self.consequences(chrom, pos, ref, alt)]
+        if self._mane_src is not mane_ids:  # the pipeline passes one list per run: map it once
+            self._mane_src, self._mane = mane_ids, mane_map(mane_ids)
+        anns = [to_annotation(c, self._mane) for c in self.consequences(chrom, pos, ref, alt)]
         return pick(anns, candidate_genes)
 
     def describe(self) -> str:
