@@ -130,7 +130,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                         f"{'phenopacket subject' if sample == profile.subject_id else 'PED file, the one affected child with parents'})")
     intake = read_vcf(vcf_path, panel, sample=sample,
                       build=opts.build, padding=opts.padding, quality=quality,
-                      unannotated_intervals=None if opts.all_variants else exon_intervals)
+                      # built-in annotation tells coding from deep-intronic alleles: whole gene spans are read
+                      unannotated_intervals=None if opts.all_variants or opts.transcripts_path else exon_intervals)
     warnings.extend(intake.warnings)
     proband = intake.proband
     mother, father, ped_sex, affected = _relatives(pedigree, proband, intake.samples)
@@ -169,7 +170,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     # only alleles in exons (+/- splice padding) of the genes become findings (see DEVELOPERS.md).
     regions = coding_regions.get("model")  # set when the VCF had no annotation and only exons were read
     outside_regions = 0
-    if regions is None and not layouts and not opts.all_variants:
+    if regions is None and not layouts and not opts.all_variants and not opts.transcripts_path:
         from .regions import CodingRegions, load_exons
 
         regions = CodingRegions(load_exons(), panel, intake.build)
@@ -180,6 +181,12 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         annotator = Annotator(opts.transcripts_path, opts.reference)
         warnings.append(annotator.describe() + ": used for records without CSQ/ANN")
         mane_ids = [a for g in panel.genes.values() for a in (g.refseq_transcript, g.ensembl_transcript) if a]
+    concordance = None
+    if annotator is not None and any(k in layouts for k in ("CSQ", "ANN")):
+        from .annotate.concordance import Concordance
+        from .consequence.annotations import all_annotations
+
+        concordance = Concordance(annotator.describe(), annotator.reference is not None)
     # copy-number and structural events (symbolic records, explicit alleles >= 50 bp): irdtriage.sv
     from .sv.findings import make_findings
 
@@ -194,6 +201,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         sv_findings += more
         warnings.extend(more_warnings)
     findings: list[models.Finding] = []
+    ref_mismatch: list[str] = []
     for variant in intake.variants:
         call = variant.calls.get(proband)
         if call is None or call.alt_copies == 0 or id(variant) in sv_consumed:
@@ -209,8 +217,16 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                 continue
         annotation = pick_annotation(variant, layouts, panel, genes_here)
         if annotator is not None and annotation.source == "none":
-            built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here, mane_ids)
-            annotation = built or annotation
+            other = annotator.check_ref(variant.chrom, variant.pos, variant.ref)
+            if other is not None:  # wrong build or FASTA: no annotation rather than a wrong one
+                ref_mismatch.append(f"{variant.chrom}:{variant.pos} REF {variant.ref}, FASTA {other}")
+            else:
+                built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here,
+                                                 mane_ids)
+                annotation = built or annotation
+        elif concordance is not None:  # the VCF's own CSQ/ANN against the built-in annotation
+            concordance.add(variant, all_annotations(variant, layouts, panel),
+                            annotator.consequences(variant.chrom, variant.pos, variant.ref, variant.alt))
         gene_symbol = annotation.gene if annotation.gene in panel.genes else genes_here[0]
         if annotation.gene != gene_symbol:
             annotation.gene = gene_symbol
@@ -223,6 +239,9 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         ))
     if annotator is not None:
         annotator.close()
+    if ref_mismatch:
+        warnings.append(f"{len(ref_mismatch)} allele(s) whose REF differs from the reference FASTA were left without "
+                        f"built-in annotation (is the FASTA of the VCF's build?), e.g. {ref_mismatch[0]}")
     findings.extend(sv_findings)
 
     # 6. evidence -------------------------------------------------------------------
@@ -402,6 +421,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     )
     res["phenotype"]["term_changes"] = term_changes
     res["evidence_sources"] = evidence_sources
+    res["annotation_concordance"] = concordance.to_dict() if concordance is not None else None
     # what the input could not support, first in the result so every output shows it first
     return {"schema_version": res.pop("schema_version"), "input_limits": limits, **res}
 

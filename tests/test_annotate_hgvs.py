@@ -172,3 +172,16 @@ def test_shift_stays_in_its_exon():
     seq = RegionSequence("T", 1, REGION)
     d = describe(TxMap(PLUS), 31, "AG", "A", seq)
     assert d is not None and d.text == "c.12del"
+
+
+def test_cds_that_is_not_one_open_reading_frame_gives_no_protein_change():
+    """A transcript model whose CDS does not match the sequence (here the CDS starts one base late,
+    so its length, 44 nt, is not a multiple of 3 -- common practice: a CDS is whole codons from
+    ATG to one stop) gives HGVS c. but p.? with a note, never a made-up protein change or a crash."""
+    bad = TxModel("NM_TEST.1", "GENE1", "T", "+", ((11, 32), (54, 71)), (22, 65), "NP_TEST.1")
+    res = annotate_allele("T", 27, "A", "G", TranscriptSet([bad]), TxCache(RegionSequence("T", 1, REGION)))
+    assert len(res) == 1
+    r = res[0]
+    assert r.hgvs_p == "p.?" and "coding_sequence_variant" in r.terms
+    assert any("does not translate from ATG to one stop codon" in n for n in r.notes)
+    assert r.hgvs_c == "c.6A>G"  # position 27 is the 6th base from the (wrong) CDS start at 22

@@ -342,3 +342,58 @@ def test_rebuild_replaces_only_a_bundle_folder(tmp_path, sources):
     with pytest.raises(InputError, match="holds files irdtriage did not write"):
         build_bundle(str(out), clinical=sources["clinical"], build="GRCh38")
     assert os.path.exists(out / "notes.txt")
+
+
+def _outputs(tmp_path, *args):
+    """Run the real CLI (subprocess) and read back every output it wrote."""
+    import csv
+    import subprocess
+    import sys
+
+    root = Path(__file__).resolve().parents[1]
+    out = tmp_path / "all_out"
+    env = dict(os.environ, NO_COLOR="1", COLUMNS="200", PYTHONPATH=str(root))
+    r = subprocess.run([sys.executable, "-m", "irdtriage", "triage", *args, "--out", str(out)], capture_output=True,
+                       text=True, env=env, timeout=600)
+    assert r.returncode == 0, r.stderr
+    with open(out / "findings.tsv", newline="") as fh:
+        rows = list(csv.DictReader(fh, delimiter="\t"))
+    with pysam.VariantFile(str(out / "findings.vcf.gz")) as vf:
+        header = [str(h).strip() for h in vf.header.records if h.key == "irdtriage_evidence"]
+    return r.stdout, json.loads((out / "result.json").read_text()), (out / "report.html").read_text(), rows, header
+
+
+def test_evidence_sources_appear_in_every_output(tmp_path, bundle_dir):
+    """The bundle's sources (names, versions, dates, checksums; from the ClinVar-layout
+    ##fileDate and the gnomAD-layout file names) reach the terminal header, the HTML run block,
+    the findings VCF header and a TSV column just before ``caution``."""
+    vcf = patient_vcf(tmp_path / "p.vcf", [(RPGRIP1_NULL, NULL_CSQ, "1/1:0,35:35:99")])
+    term, res, html, rows, header = _outputs(tmp_path, vcf, "--resources", str(bundle_dir), "--hpo", "HP:0000510")
+    manifest = json.loads((bundle_dir / "manifest.json").read_text())
+    sha = {c["kind"]: c["sha256"] for c in manifest["contents"]}
+    assert set(sha) == {"population", "clinical", "scores"}
+    flat = "".join(term.split())  # the terminal wraps long lines
+    for kind, digest in sha.items():
+        assert digest in flat and digest in html, kind  # every bundle file's checksum
+        assert any(f"ID={kind}" in h and digest in h for h in header), (kind, header)
+    assert "version4.1" in flat and "date2024-05-02" in flat  # gnomAD file name, ClinVar ##fileDate
+    assert "version 4.1" in html and "2024-05-02" in html
+    assert any('Version="4.1"' in h for h in header) and any('Date="2024-05-02"' in h for h in header)
+    # the terminal shows the sources in the header, before the gene hypotheses
+    assert term.index("Evidence: population frequencies") < term.index("Gene hypotheses")
+    # TSV: a column just before the final caution names the sources behind the row's values
+    cols = list(rows[0])
+    assert cols[-2:] == ["evidence_sources", "caution"]
+    null = next(r for r in rows if r["pos"] == str(RPGRIP1_NULL[1]))
+    assert "frequency: bundle" in null["evidence_sources"] and "clinical: bundle" in null["evidence_sources"]
+    assert res["evidence_sources"]["bundle"]["sources"][0]["bundle_sha256"] in sha.values()
+
+
+def test_no_evidence_source_says_none_given(tmp_path):
+    vcf = patient_vcf(tmp_path / "p.vcf", [(RPGRIP1_NULL, NULL_CSQ, "1/1:0,35:35:99")])
+    term, res, html, rows, header = _outputs(tmp_path, vcf, "--hpo", "HP:0000510")
+    assert res["evidence_sources"] == {"bundle": None, "files": [], "online": None}
+    assert "Evidence sources: none given" in term
+    assert "none given" in html[html.index('id="run"'):]
+    assert header == ['##irdtriage_evidence=<ID=none,Description="none given: no evidence bundle, file or online source">']
+    assert {r["evidence_sources"] for r in rows} == {"none given"}

@@ -332,3 +332,25 @@ def test_without_online_nothing_opens_a_network_connection(tmp_path, server):
             "--cache", str(tmp_path / "c.sqlite"))
     assert p.returncode == 0, p.stderr
     assert "socket.connect" in log.read_text() and "127.0.0.1" in log.read_text()
+
+
+def test_online_source_and_cache_appear_in_every_output(server, tmp_path):
+    """The online provider, its data release and cache file reach the terminal header, the HTML
+    run block, the findings VCF header and the TSV column naming each row's sources."""
+    from test_bundle import _outputs
+
+    cache = tmp_path / "online.sqlite"
+    term, res, html, rows, header = _outputs(tmp_path, _vcf(tmp_path), "--hpo", "HP:0000510", "--all-variants",
+                                             "--online", "--online-url", server.url, "--cache", str(cache))
+    online = res["evidence_sources"]["online"]
+    release = online["version"]["ensembl_data_release"]
+    assert online["cache"]["path"] == str(cache) and release is not None
+    flat = "".join(term.split())  # the terminal wraps long lines
+    for text, want in ((flat, lambda x: "".join(x.split())), (html, str)):
+        assert want(str(cache)) in text and want(server.url) in text and want(f"data release {release}") in text
+    assert term.index("Evidence: online") < term.index("Gene hypotheses")
+    assert any("ID=online" in h and f'Cache="{cache}"' in h and f'Version="data release {release}"' in h
+               for h in header), header
+    by_pos = {r["pos"]: r for r in rows}
+    assert by_pos[str(RPGRIP1_COMMON[1])]["evidence_sources"].startswith("frequency: online Ensembl REST")
+    assert "clinical significance: online Ensembl REST" in by_pos[str(RPGRIP1_NULL[1])]["evidence_sources"]

@@ -96,7 +96,8 @@ def test_vcf_header_and_records_name_the_rule_set(run):
 def test_tsv_has_rule_set_column_before_caution(run):
     out, _, _ = run
     df = pd.read_csv(out / "findings.tsv", sep="\t", dtype=str, keep_default_na=False)
-    assert list(df.columns[-2:]) == ["rule_set", "caution"]
+    # added columns sit just before the final caution column (rule_set, then evidence_sources)
+    assert list(df.columns[-3:]) == ["rule_set", "evidence_sources", "caution"]
     assert dict(zip(df["gene"], df["rule_set"])) == {"RPE65": "clingen-lca-eord-rpe65-v1",
                                                       "ABCA4": load_combining().default}
 

@@ -27,6 +27,8 @@ from .providers import SequenceProvider, TranscriptProvider, TxModel, revcomp, v
 NMD_NT = 50
 SOURCE = "built-in"
 NO_SEQUENCE = "no reference sequence: amino-acid change unknown"
+BAD_ORF = ("the reference CDS of this transcript does not translate from ATG to one stop codon at its end "
+           "(wrong FASTA or transcript model?): amino-acid change unknown")
 
 
 @dataclass
@@ -56,6 +58,7 @@ class TxCache:
         self._maps: dict[str, TxMap] = {}
         self._tx_seq: dict[str, Optional[str]] = {}
         self._prot: dict[str, str] = {}
+        self._orf: dict[str, bool] = {}
 
     def map(self, tx: TxModel) -> TxMap:
         m = self._maps.get(tx.transcript_id)
@@ -74,6 +77,15 @@ class TxCache:
             s = m.transcript_sequence(self.seq)
             self._tx_seq[m.tx.transcript_id] = s if len(s) == m.length else None
         return self._tx_seq[m.tx.transcript_id]
+
+    def orf_ok(self, m: TxMap, tx_seq: str) -> bool:
+        """The reference CDS is one open reading frame: a multiple of 3 whose only stop is its last codon."""
+        ok = self._orf.get(m.tx.transcript_id)
+        if ok is None:
+            n = m.cds_end - m.cds_start + 1
+            prot = self.protein(m, tx_seq)
+            ok = self._orf[m.tx.transcript_id] = n % 3 == 0 and len(prot) * 3 == n and prot.endswith("*")
+        return ok
 
     def protein(self, m: TxMap, tx_seq: str) -> str:
         """The reference translation from c.1 to the first stop (kept)."""
@@ -131,12 +143,15 @@ def annotate_on(tx: TxModel, pos: int, ref: str, alt: str, cache: TxCache) -> Op
         if not pl.exonic_only:
             terms.append("coding_sequence_variant")
             res.hgvs_p = "p.?"
-        elif tx_seq is None:
+        elif tx_seq is None or not cache.orf_ok(m, tx_seq):
+            if tx_seq is not None:  # the model's CDS and the sequence disagree: no protein is predicted
+                res.notes.append(BAD_ORF)
             terms.append("frameshift_variant" if delta % 3 else
                          "inframe_insertion" if delta > 0 else "inframe_deletion" if delta < 0
                          else "coding_sequence_variant")
             res.hgvs_p = "p.?"
-            res.notes.append(NO_SEQUENCE)
+            if tx_seq is None:
+                res.notes.append(NO_SEQUENCE)
         else:
             alt_tx = revcomp(edit.alt) if m.minus else edit.alt
             pc = protein_change(tx_seq, m.cds_start, m.cds_end, pl.tx_first, pl.tx_last, alt_tx,
@@ -167,7 +182,12 @@ def _nmd(m: TxMap, change_last: int, delta: int, stop_last: int) -> tuple[Option
 
 
 # ---------------------------------------------------------------------------------------------
-def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
+def mane_map(mane_ids: Iterable[str]) -> dict[str, str]:
+    """{accession without version: accession as given} of the MANE Select transcripts."""
+    return {versionless(x): x for x in mane_ids}
+
+
+def to_annotation(c: TxConsequence, mane_ids: Iterable[str] | dict[str, str] = ()) -> Annotation:
     # extra fields carry the names of the IRDT_TX layout (vcf_writer.FIELDS), read back the same way
     extra: dict[str, str] = {}
     if c.protein_position is not None:
@@ -184,9 +204,14 @@ def to_annotation(c: TxConsequence, mane_ids: Iterable[str] = ()) -> Annotation:
         extra["stop_to_last_junction_nt"] = str(c.nmd_distance)
     if c.notes:
         extra["notes"] = "; ".join(c.notes)
-    # MANE Select only for the same accession.version (another version may encode another protein)
-    mane = {x for x in mane_ids}
-    is_mane = c.transcript in mane if "." in c.transcript else versionless(c.transcript) in {versionless(x) for x in mane}
+    # MANE Select by accession without version, as the CSQ/ANN reader decides it
+    # (irdtriage.consequence.annotations), so an annotated and an unannotated run of the same
+    # records reach the same criteria; another version of the MANE accession is named in extra.
+    by_acc = mane_ids if isinstance(mane_ids, dict) else mane_map(mane_ids)
+    mane_acc = by_acc.get(versionless(c.transcript))
+    is_mane = mane_acc is not None
+    if is_mane and "." in c.transcript and "." in mane_acc and mane_acc != c.transcript:
+        extra["mane_select_version"] = mane_acc
     return Annotation(gene=c.gene, transcript=c.transcript, consequence=c.terms, hgvs_c=c.hgvs_c,
                       hgvs_p=c.hgvs_p, exon=c.exon, intron=c.intron, source=SOURCE,
                       is_mane=is_mane, extra=extra)
@@ -226,6 +251,8 @@ class Annotator:
         self.reference = FastaSequence(reference_path) if reference_path else None
         self.cache = TxCache(self.reference)
         self.transcripts_path, self.reference_path = transcripts_path, reference_path
+        self._mane_src: object = None
+        self._mane: dict[str, str] = {}
 
     def consequences(self, chrom: str, pos: int, ref: str, alt: str) -> list[TxConsequence]:
         return annotate_allele(chrom, pos, ref, alt, self.transcripts, self.cache)
@@ -240,7 +267,9 @@ class Annotator:
 
     def annotation_for(self, chrom: str, pos: int, ref: str, alt: str, candidate_genes: list[str],
                        mane_ids: Iterable[str]) -> Optional[Annotation]:
-        anns = [to_annotation(c, mane_ids) for c in self.consequences(chrom, pos, ref, alt)]
+        if self._mane_src is not mane_ids:  # the pipeline passes one list per run: map it once
+            self._mane_src, self._mane = mane_ids, mane_map(mane_ids)
+        anns = [to_annotation(c, self._mane) for c in self.consequences(chrom, pos, ref, alt)]
         return pick(anns, candidate_genes)
 
     def describe(self) -> str:

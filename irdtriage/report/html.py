@@ -195,6 +195,9 @@ def _run_details(result: dict) -> str:
     ]
     for inp in run.get("inputs") or []:
         items.append((f"Input ({inp.get('role')})", f"{fmt(inp.get('path'))} sha256:{fmt(inp.get('sha256'))}"))
+    from ..evidence.describe import source_items  # "none given" rather than nothing
+
+    items.extend(source_items(result.get("evidence_sources")))
     return ('<section id="run"><h2>Run details</h2><dl class="meta run">'
             + "".join(f"<dt>{e(k)}</dt><dd>{e(fmt(v))}</dd>" for k, v in items) + "</dl></section>")
 

@@ -240,6 +240,10 @@ def render_terminal(
         return
     if _rule_set_line(result) is not None:
         _ind(console, _rule_set_line(result), hang=2)
+    from ..evidence.describe import source_items  # evidence sources: "none given" rather than nothing
+
+    for label, text in source_items(result.get("evidence_sources")):
+        _ind(console, Text(f"{label}: {text}", style=ST_DIM), 2)
     _ind(console, Text(strip_provenance(case.get("summary"))), hang=0)
     p()
     p(Text("Gene hypotheses (ranked)", style=ST_HEAD))
@@ -275,6 +279,15 @@ def render_terminal(
         p(Text("Next steps", style=ST_HEAD))
         for s in steps:
             _ind(console, Text("- " + strip_provenance(s)), 2)  # continuation lines under the text, not the dash
+    conc = result.get("annotation_concordance")
+    if verbose and conc:  # the VCF's CSQ/ANN against the built-in annotation (irdtriage.annotate.concordance)
+        from ..annotate.concordance import difference_lines, summary_line
+
+        p()
+        p(Text("Annotation concordance", style=ST_HEAD))
+        _ind(console, Text(summary_line(conc)), 2)
+        for line in difference_lines(conc):
+            _ind(console, Text("≠ " + line, style=ST_DIM), 4)
     warnings = result.get("warnings") or []
     if warnings:
         p()

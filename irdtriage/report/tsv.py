@@ -12,6 +12,8 @@ annotation), and ``phenotype_rank`` shows ties as ranges ("1–69 of 252").
 would complete a genotype; see irdtriage/noncoding.py); ``noncoding_reason`` and
 ``noncoding_next_step`` say why it (or a listed recurrent non-coding allele) is reported and
 what to do next.
+``evidence_sources`` names the sources behind the row's frequency, clinical and score values
+(``none given`` when none gave any; irdtriage/evidence/describe.py).
 Lists are joined with ``;`` and unknown values are empty cells.
 """
 from __future__ import annotations
@@ -36,7 +38,7 @@ COLUMNS = (
     "noncoding_candidate", "noncoding_reason", "noncoding_next_step",
     "finding_kind", "structural_type", "structural_start", "structural_end", "copy_number", "structural_exons",
     "structural_frame", "structural_nmd", "structural_summary", "cnv_points", "cnv_points_class",
-    "structural_next_step", "rule_set",
+    "structural_next_step", "rule_set", "evidence_sources",
     "caution",
 )
 
@@ -62,6 +64,9 @@ def iter_rows(result: dict) -> Iterator[dict]:
             gene_of[fid] = g
     caution = " ".join(CAUTION.split())
     limits = input_limits(result)  # what the input could not support, repeated on every row
+    from ..evidence.describe import finding_sources
+
+    ev_sources = result.get("evidence_sources")
     for f in result.get("findings") or []:
         g = gene_of.get(f.get("id")) or {}
         o = f.get("original") or {}
@@ -92,6 +97,7 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "noncoding_next_step": (f.get("noncoding") or {}).get("next_step"),
             **_structural_cells(f),
             "rule_set": f.get("rule_set"),  # the combining rule set that gave the class (panels/combining.yaml)
+            "evidence_sources": finding_sources(f, ev_sources),  # frequency/clinical/score sources
         }
 
 

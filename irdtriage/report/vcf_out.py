@@ -145,6 +145,10 @@ def build_header(result: dict, contigs: Iterable[str]) -> pysam.VariantHeader:
     h.add_line(f"##irdtriage_case_status={_header_text(case.get('status'))}")
     for c in cautions(result):
         h.add_line(f"##irdtriage_caution={_header_text(c)}")
+    from ..evidence.describe import vcf_header_values  # one line per evidence source, or "none given"
+
+    for v in vcf_header_values(result.get("evidence_sources")):
+        h.add_line(f"##irdtriage_evidence={v}")
     for c in sorted(set(contigs), key=_contig_key):
         h.contigs.add(c)
     for fid, num, typ, desc in INFO_FIELDS:

@@ -315,7 +315,8 @@ def test_triage_uses_builtin_annotation(ush2a, tmp_path):
     assert found["c.11864G>A"]["hgvs_p"] == "p.(Trp3955Ter)"
     for f in found.values():
         assert f["annotation_source"] == "built-in" and f["transcript"] == "NM_206933.2"
-        assert f["gene"] == "USH2A" and f["is_mane"] is False  # MANE Select is NM_206933.4
+        # MANE Select is NM_206933.4 (MANE v1.5): the accession decides, as for CSQ/ANN; the version is named
+        assert f["gene"] == "USH2A" and f["is_mane"] is True
         pvs1 = next(c for c in f["criteria"] if c["code"] == "PVS1")
         assert pvs1["met"] is True  # null variants far from the last exon-exon junction
     assert not any(lim["code"] == "no_consequence_annotation" for lim in res["input_limits"])
