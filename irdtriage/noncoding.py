@@ -175,6 +175,10 @@ def select(findings: Sequence[Finding], panel: Panel, proband: str, *, curated: 
             return _cls(p) not in ("Benign", "Likely benign")
         return _cls(p) in QUALIFYING and not evidence_free(p, curated)
 
+    # Qualifying partners per gene, judged once (partner_ok does not depend on the allele it is
+    # paired with), so a gene with thousands of intronic alleles costs linear, not quadratic, time.
+    partners_by_gene = {g: [p for p in fs if partner_ok(p)] for g, fs in by_gene.items()}
+
     held: list[Finding] = []
     for f in findings:
         if id(f) in notes or not f.passes_quality or not evidence_free(f, curated) or not is_rare(f):
@@ -190,7 +194,7 @@ def select(findings: Sequence[Finding], panel: Panel, proband: str, *, curated: 
         elif call.zygosity == "homozygous" and gene.recessive:
             completes = "homozygous"
         elif call.zygosity == "heterozygous" and gene.recessive:
-            partners = [p for p in by_gene.get(f.gene, []) if p is not f and partner_ok(p)
+            partners = [p for p in partners_by_gene.get(f.gene, []) if p is not f
                         and not _in_cis(f, p, proband, mother, father)]
             completes = "second allele" if partners else ""
         if not completes:
