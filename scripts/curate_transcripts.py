@@ -99,6 +99,46 @@ def _carry(ex38: list[list[int]], ex37: list[list[int]], strand: str, cds: dict)
     return {"cds_start": min(x, y), "cds_end": max(x, y)}
 
 
+def terminal_exon_to_mane_end(exons: list[list[int]], strand: str, mane: tuple[int, int]
+                              ) -> Optional[tuple[list[list[int]], str]]:
+    """Exons of a table transcript that runs past MANE Select's 3' end, cut at that end: when the
+    MANE 3' end lies in an intron, the exon 5' of that intron is extended through it to the MANE
+    end (MANE's terminal exon retains that intron's sequence, as RPGR's ORF15 exon does).  None
+    when the MANE 3' end is not intronic on this transcript."""
+    m3 = mane[0] if strand == "-" else mane[1]
+    if any(a <= m3 <= b for a, b in exons):
+        return None
+    if strand == "-":
+        keep = [list(e) for e in exons if e[0] > m3]
+        if not keep or len(keep) == len(exons):
+            return None
+        keep[0][0] = m3
+    else:
+        keep = [list(e) for e in exons if e[1] < m3]
+        if not keep or len(keep) == len(exons):
+            return None
+        keep[-1][1] = m3
+    k = len(keep)
+    return keep, (f"exons 1-{k} of the GENCODE-derived canonical transcript, exon {k} extended through the next "
+                  f"intron to the MANE Select 3' end ({m3}): the canonical transcript ends further 3', and GENCODE "
+                  f"CDS, stop-codon and 3' UTR rows support this terminal exon")
+
+
+def shifted_model(table38: list[list[int]], model38: list[list[int]], t37: dict) -> Optional[dict]:
+    """GRCh37 exons of a model built from the GRCh38 table transcript (:func:`terminal_exon_to_mane_end`):
+    the GRCh38 -> GRCh37 offset must be one constant over the kept exons of both tables; the model is
+    then shifted by it.  None otherwise."""
+    ex37 = one_based(t37["exons"])
+    if len(ex37) != len(table38):
+        return None
+    deltas = {b37[0] - b38[0] for b37, b38 in zip(ex37, table38) if b38[0] >= model38[0][0] and b38[1] <= model38[-1][1]}
+    deltas |= {b37[1] - b38[1] for b37, b38 in zip(ex37, table38) if b38[0] >= model38[0][0] and b38[1] <= model38[-1][1]}
+    if len(deltas) != 1:
+        return None
+    d = deltas.pop()
+    return dict(t37, exons=[[a + d - 1, b + d] for a, b in model38])  # 0-based starts, as the table stores
+
+
 def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: dict,
            aliases: Optional[dict] = None) -> tuple[list[dict], list[dict]]:
     """Per panel gene: exons of the GENCODE-derived canonical transcript (both builds) and the CDS
@@ -112,6 +152,8 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
         names = [sym] + list(aliases.get(sym, []))
         m = mane.get(sym)
         t_name = next((n for n in names if n in t38), None)
+        if g.get("refseq_transcript") == RCRS:
+            continue  # mitochondrial genes: rcrs_entries
         if m is None:
             skipped.append({"symbol": sym, "reason": "no MANE Select row in the MANE summary"})
             continue
@@ -131,12 +173,26 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
         ex38 = one_based(t["exons"])
         rows = next((cds_rows[n] for n in names if n in cds_rows), None)
         cds, why = derive_cds(ex38, strand, rows, (m["start"], m["end"]))
+        model_note = ""
+        if cds is not None and (cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]):
+            # the table transcript runs past MANE's 3' end: try MANE's terminal exon as the table
+            # exon whose intron holds MANE's 3' end, extended to that end (a retained-intron exon)
+            ext = terminal_exon_to_mane_end(ex38, strand, (m["start"], m["end"]))
+            cds = None
+            why = "derived CDS extends beyond the MANE Select span"
+            if ext is not None:
+                c2, why2 = derive_cds(ext[0], strand, rows, (m["start"], m["end"]))
+                if c2 is not None and m["start"] <= c2["cds_start"] and c2["cds_end"] <= m["end"] \
+                        and c2["mane_utr_support"] == [True, True]:
+                    cds, ex38, model_note = c2, ext[0], ext[1]
+                else:
+                    why += ("; with the terminal exon extended to the MANE 3' end: "
+                            + (why2 or "the CDS does not reach both MANE Select ends through UTR rows"))
         if cds is None:
             skipped.append({"symbol": sym, "reason": why})
             continue
-        if cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]:
-            skipped.append({"symbol": sym, "reason": "derived CDS extends beyond the MANE Select span"})
-            continue
+        if model_note:
+            span = (ex38[0][0], ex38[-1][1])
         offsets = _mane_offsets(span, m, strand)
         entry: dict[str, Any] = {
             "symbol": sym, "strand": strand, "mane_refseq": m["refseq"], "mane_ensembl": m["ensembl"],
@@ -145,11 +201,17 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
             "protein_length": cds["protein_length"], "cds_length": cds["cds_length"],
             "cds_choice": {"candidates": cds["candidates"], "mane_utr_support": cds["mane_utr_support"]},
         }
+        if cds.get("tie_break"):
+            entry["cds_choice"]["tie_break"] = cds["tie_break"]
         if t_name != sym:
             entry["table_name"] = t_name
+        if model_note:
+            entry["structure_note"] = model_note
         entry["grch38"] = {"chrom": m["chrom"], "cds_start": cds["cds_start"], "cds_end": cds["cds_end"],
                            "exons": ex38}
         o = next((t37[n] for n in names if n in t37), None)
+        if o is not None and model_note:
+            o = shifted_model(one_based(t["exons"]), ex38, o)
         if o is None:
             entry["grch37"] = None
             entry["grch37_note"] = "no GRCh37 structure: not in the GENCODE-derived GRCh37 table"
@@ -166,6 +228,47 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
                     if len(ex37) != len(ex38) else "GRCh37 table transcript exon lengths differ from the GRCh38 one"))
         kept.append(entry)
     return kept, skipped
+
+
+RCRS = "NC_012920.1"
+
+
+def rcrs_entries(panel_genes: list[dict]) -> list[dict]:
+    """Structure of the panel's mitochondrial genes (``refseq_transcript: NC_012920.1``) from their
+    rCRS spans in the panel (NCBI RefSeq NC_012920.1 feature table, cited per gene in genes.yaml):
+    one exon on the rCRS, which is both GRCh38 chrM and GRCh37 MT; for protein-coding genes the
+    CDS is the whole span.  A span that is not a whole number of codons ends in an incomplete stop
+    codon (T or TA) completed by polyadenylation (Ojala D et al., Nature 1981;290:470-474; from
+    memory), so the protein has span // 3 residues and ``stop_codon_nt`` says how much of the stop
+    is encoded; otherwise the last codon is the stop.  tRNA genes get exons only."""
+    out = []
+    for g in panel_genes:
+        if g.get("refseq_transcript") != RCRS:
+            continue
+        s38, s37 = g["grch38"], g.get("grch37") or g["grch38"]
+        if s38["chrom"] != "MT" or s37["chrom"] != "MT" or (s38["start"], s38["end"]) != (s37["start"], s37["end"]):
+            raise SystemExit(f"{g['symbol']}: an rCRS gene needs the same MT span on both builds")
+        lo, hi = s38["start"], s38["end"]
+        e: dict[str, Any] = {"symbol": g["symbol"], "strand": g["strand"], "mane_refseq": RCRS,
+                             "mane_ensembl": g.get("ensembl_transcript", ""), "mane_protein": g.get("refseq_protein", ""),
+                             "mane_boundaries_match": False, "mane_end_offsets_nt": [0, 0], "exon_count": 1,
+                             "reference_record": f"rCRS {RCRS} (mitochondrial genes have no MANE Select); span "
+                                                 f"{lo}..{hi} as in the panel, from the NC_012920.1 feature table"}
+        coding = bool(g.get("refseq_protein"))
+        if coding:
+            n = hi - lo + 1
+            e["protein_length"] = n // 3 if n % 3 else n // 3 - 1
+            e["cds_length"] = n
+            if n % 3:
+                e["stop_codon_nt"] = n % 3
+        for key in ("grch38", "grch37"):
+            b: dict[str, Any] = {"chrom": "MT"}
+            if coding:
+                b.update({"cds_start": lo, "cds_end": hi})
+            b["exons"] = [[lo, hi]]
+            e[key] = b
+        out.append(e)
+    return out
 
 
 def coding_entry(facts: dict, mane: dict, panel_symbols: set, source: dict) -> dict[str, Any]:
@@ -325,8 +428,9 @@ def main(argv: Optional[list[str]] = None) -> int:
         if ok:
             e["outside_checks"] = ok
         checked.append(e)
-    kept = checked
+    kept = checked + rcrs_entries(panel["genes"])
     order = {g["symbol"]: i for i, g in enumerate(panel["genes"])}
+    kept.sort(key=lambda x: order[x["symbol"]])
     skipped.sort(key=lambda x: order[x["symbol"]])
     coding = []
     for f in a.lrg:
