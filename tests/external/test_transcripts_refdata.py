@@ -187,11 +187,15 @@ def test_packaged_coding_matches_records(records):
 #   CDS was chosen among tied candidates by UTR rows spread over several exons: WFS1 890, MFN2 757,
 #   IFT140 1462, IQCB1 598, BEST1 585, KCNJ13 360, CTNNA1 906, OAT 439, PIBF1 757, TMEM138 162;
 #   RPGR 1152 (the ORF15 isoform of MANE Select NM_001034853.2; Vervoort R et al., Nat Genet
-#   2000;25:462-466).
+#   2000;25:462-466); genes whose structure is the GENCODE transcript with the MANE Select span:
+#   TMEM126A 195, RDH5 318, EYS 3144, TTLL5 1281, ARSG 525, CEP164 1460, SCAPER 1400, NRL 237,
+#   MVK 396, PEX5 639, SEMA4A 761, SLC38A8 435, KLC4 619.
 FROM_MEMORY = {"RHO": 348, "RPE65": 533, "ABCA4": 2273, "CEP290": 2479, "RPGRIP1": 1286, "BBS1": 593,
                "PRPF31": 499, "CLN3": 438, "GUCY2D": 1103, "CRB1": 1406, "MKKS": 570,
                "WFS1": 890, "MFN2": 757, "IFT140": 1462, "IQCB1": 598, "BEST1": 585, "KCNJ13": 360,
-               "CTNNA1": 906, "OAT": 439, "PIBF1": 757, "TMEM138": 162, "RPGR": 1152}
+               "CTNNA1": 906, "OAT": 439, "PIBF1": 757, "TMEM138": 162, "RPGR": 1152,
+               "TMEM126A": 195, "RDH5": 318, "EYS": 3144, "TTLL5": 1281, "ARSG": 525, "CEP164": 1460,
+               "SCAPER": 1400, "NRL": 237, "MVK": 396, "PEX5": 639, "SEMA4A": 761, "SLC38A8": 435, "KLC4": 619}
 
 
 @pytest.mark.parametrize("symbol,length", sorted(FROM_MEMORY.items()))
