@@ -48,6 +48,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Iterable, NamedTuple, Optional, Sequence
 
+from . import heteroplasmy
 from .mechanism import NULL_CONSEQUENCES, mode_accepts, modes_of
 from .models import Call, Finding, Gene, Variant
 
@@ -92,9 +93,9 @@ def is_x_nonpar(variant: Variant, build: Optional[str] = None) -> bool:
 # Allelic state once the sex is settled
 # ---------------------------------------------------------------------------
 # Mitochondrial calls: a call whose allele fraction (AD) is at least this share is taken as
-# homoplasmic, below it as heteroplasmic (gnomAD mtDNA release, Laricchia et al., Genome Res
-# 2022: homoplasmic >= 0.95, from memory). A 0/1 chrM call is heteroplasmic whatever its reads.
-HOMOPLASMIC_MIN_FRACTION = 0.95
+# homoplasmic, below it as heteroplasmic (panels/heteroplasmy.yaml, with its source: the gnomAD
+# mtDNA convention). A 0/1 chrM call is heteroplasmic whatever its reads.
+HOMOPLASMIC_MIN_FRACTION = heteroplasmy.bundled().homoplasmic_min_fraction
 
 
 class AllelicState(NamedTuple):
@@ -498,6 +499,9 @@ FIT_PREFERENCE = {
     "biallelic in trans": 0,
     "homozygous": 1,
     "hemizygous": 1,
+    "mitochondrial homoplasmic": 1,
+    "mitochondrial heteroplasmic": 2,
+    "mitochondrial heteroplasmy below disease level": 6,
     "de novo": 2,
     "biallelic phase unknown": 3,
     "heterozygous in a dominant gene": 4,
@@ -550,9 +554,8 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
     modes = [m for m in nuclear if m not in specs or specs[m].retinal]
     off_modes = [m for m in nuclear if m not in modes]
     if "MT" in gene.inheritance and not nuclear:
-        a = GenotypeAssessment("no qualifying finding", notes=notes + [
-            "mitochondrial inheritance is not assessed (heteroplasmy is not modelled)"], excluded_ids=excluded)
-        return a
+        mt = [(f, c) for f, c in alleles if bare_chrom(f.variant.chrom) == "MT"]
+        return _mitochondrial(gene, accepted_mt(gene, mt, notes), proband, mother, notes, excluded, min_dp, min_gq)
     if not alleles:
         return GenotypeAssessment("no qualifying finding", notes=notes, excluded_ids=excluded)
 
@@ -815,3 +818,78 @@ def _deletion_check(f: Finding, c: Call, proband, mother, father, alleles, conte
     if ab is not None and ab < 0.85:
         notes.append(f"allele balance {ab:.2f} is low for a homozygous call")
     return True, notes
+
+
+# ---------------------------------------------------------------------------
+# Mitochondrial genes (maternal inheritance, heteroplasmy)
+# ---------------------------------------------------------------------------
+def accepted_mt(gene: Gene, alleles: list, notes: list[str]) -> list:
+    """The chrM alleles whose class the gene's mitochondrial mode accepts (notes name the others)."""
+    spec = modes_of(gene).get("MT")
+    if spec is None:
+        return alleles
+    keep = []
+    for f, c in alleles:
+        ok, why = mode_accepts(spec, f)
+        if ok:
+            keep.append((f, c))
+        else:
+            notes.append(f"{f.id} not counted for MT: {why}")
+    return keep
+
+
+def _pct(x: Optional[float]) -> str:
+    return "level unknown (no AD)" if x is None else f"{100 * x:.0f} %"
+
+
+def _mitochondrial(gene: Gene, alleles: list, proband: str, mother: Optional[str], notes: list[str],
+                   excluded: list[str], min_dp: int, min_gq: int) -> GenotypeAssessment:
+    """Genotype fit of a gene with mitochondrial (maternal) inheritance.
+
+    mtDNA is present in many copies per cell and passed on by the mother only (textbook
+    genetics, common practice). One allele is enough; its level decides the fit: homoplasmic
+    (``heteroplasmy.homoplasmic_min_fraction``) or heteroplasmic at or above the allele's disease
+    level (``panels/heteroplasmy.yaml``) is a complete fit; a heteroplasmic level below it is not.
+    A heteroplasmic call without AD counts as heteroplasmic at an unknown level (complete, with a
+    note to measure it). The mother's call, when genotyped, is named (maternal transmission)."""
+    if not alleles:
+        return GenotypeAssessment("no qualifying finding", notes=notes, excluded_ids=excluded, mode="MT")
+
+    def sort_key(fc):
+        f, c = fc
+        lv = 1.0 if c.zygosity == "homoplasmic" else (c.allele_balance if c.allele_balance is not None else 0.5)
+        return (_class(f) not in STRONG_CLASSES, -lv, f.id)
+
+    f, c = sorted(alleles, key=sort_key)[0]
+    frac = c.allele_balance
+    v = f.variant
+    need, name, source = heteroplasmy.disease_min_fraction(gene.symbol, v.pos, v.ref, v.alt)
+    label = name or f"m.{v.pos}{v.ref}>{v.alt}"
+    out = list(notes)
+    if c.zygosity == "homoplasmic":
+        fit = "mitochondrial homoplasmic"
+        out.append(f"{f.id} {label} homoplasmic ({_pct(frac)} of reads): mitochondrial (maternal) inheritance, "
+                   f"one allele is enough")
+    elif frac is None or frac >= need:
+        fit = "mitochondrial heteroplasmic"
+        out.append(f"{f.id} {label} heteroplasmic at {_pct(frac)} of reads (disease level from about "
+                   f"{_pct(need)}: {source}): mitochondrial (maternal) inheritance")
+        if frac is None:
+            out.append(f"{f.id}: measure the heteroplasmy level (allelic depths missing)")
+    else:
+        fit = "mitochondrial heteroplasmy below disease level"
+        out.append(f"{f.id} {label} heteroplasmic at {_pct(frac)} of reads, below the level at which it usually "
+                   f"causes disease (about {_pct(need)}: {source}); levels differ between tissues: measure it in "
+                   f"another tissue (e.g. urine or muscle) before ruling it out")
+    if mother is not None:
+        mc = _call(f, mother)
+        if mc is not None and _called(mc):
+            if carries(mc):
+                out.append(f"{f.id} also carried by the mother ({_pct(mc.allele_balance)} of reads): maternal "
+                           f"transmission")
+            elif _confident(mc, min_dp, min_gq) and not (mc.ad_alt or 0):
+                out.append(f"{f.id} not seen in the mother's sample (no alternate reads): a new mtDNA allele or "
+                           f"a level below detection in her blood")
+    s, k = _strength([f])
+    return GenotypeAssessment(fit, phase="", qualifying_ids=[f.id], notes=out, mode="MT", strong_alleles=s,
+                              candidate_alleles=k, excluded_ids=excluded)

@@ -42,6 +42,9 @@ GENOTYPE_FITS = (
     "heterozygous in a dominant gene",
     "de novo",
     "single heterozygous in a recessive gene",
+    "mitochondrial homoplasmic",
+    "mitochondrial heteroplasmic",
+    "mitochondrial heteroplasmy below disease level",
     "no qualifying finding",
 )
 # Reader-facing wording of each genotype fit (keys stay as above in result.json).
@@ -53,6 +56,9 @@ GENOTYPE_FIT_LABELS = {
     "heterozygous in a dominant gene": "one allele in a dominant gene",
     "de novo": "de novo (absent in both parents)",
     "single heterozygous in a recessive gene": "one allele only in a recessive gene",
+    "mitochondrial homoplasmic": "mitochondrial (maternal), homoplasmic",
+    "mitochondrial heteroplasmic": "mitochondrial (maternal), heteroplasmic at a disease level",
+    "mitochondrial heteroplasmy below disease level": "mitochondrial (maternal), heteroplasmy below the usual disease level",
     "no qualifying finding": "no qualifying finding",
 }
 

@@ -474,7 +474,8 @@ def intron_offset(hgvs_c: str) -> Optional[int]:
     return min(offsets) if offsets else None
 
 
-STRONG_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")
+STRONG_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo",
+               "mitochondrial homoplasmic", "mitochondrial heteroplasmic")
 
 
 def _complete_fits(assessments: dict[str, Any], by_gene: dict[str, list[models.Finding]]) -> list[str]:

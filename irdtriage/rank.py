@@ -96,6 +96,9 @@ FIT_WEIGHT = {
     "heterozygous in a dominant gene": 0.85,
     "biallelic phase unknown": 0.6,
     "single heterozygous in a recessive gene": 0.05,
+    "mitochondrial homoplasmic": 0.95,
+    "mitochondrial heteroplasmic": 0.85,
+    "mitochondrial heteroplasmy below disease level": 0.05,
     "no qualifying finding": 0.0,
 }
 CLASS_WEIGHT = {
@@ -111,7 +114,8 @@ CONFLICT_FACTOR = 0.5
 PHENOTYPE_FITS = 0.5  # calibrated match from which the phenotype counts as fitting the gene
 NONCODING_GENOTYPE = 0.16  # cap on G for a fit resting on a candidate non-coding allele (invariant 4)
 
-COMPLETE_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo")
+COMPLETE_FITS = ("biallelic in trans", "homozygous", "hemizygous", "heterozygous in a dominant gene", "de novo",
+                 "mitochondrial homoplasmic", "mitochondrial heteroplasmic")
 BIALLELIC_FITS = ("biallelic in trans", "biallelic phase unknown")
 STRONG = ("Pathogenic", "Likely pathogenic")
 QUALIFYING = ("Pathogenic", "Likely pathogenic", "Uncertain significance")
@@ -378,6 +382,12 @@ def case_call(ranked: Sequence[GeneHypothesis], phenotype_fits_retina: Optional[
     if carriers:
         steps.append("Carrier result(s) in " + ", ".join(h.symbol for h in carriers) + ": not an explanation on "
                      "their own, but relevant to family planning (partner testing) and cascade testing of relatives.")
+    low_mt = [h for h in ranked if h.genotype_fit == "mitochondrial heteroplasmy below disease level" and h not in focus]
+    for h in low_mt:  # a low blood level of a pathogenic mtDNA allele is not a negative result (irdtriage.genotype)
+        said = [n for n in h.next_steps if "below the level at which it usually causes disease" in n]
+        steps.append(f"Mitochondrial allele in {h.symbol} below the usual disease level: "
+                     + (said[0] if said else "measure the heteroplasmy level in another tissue (e.g. urine or muscle)")
+                     + ".")
     if status == "UNSOLVED" and phenotype_fits_retina is not False:
         steps.append("Check coverage of hard-to-sequence regions (e.g. RPGR ORF15, poorly covered by short reads - "
                      "common practice) and look for copy-number variants; consider genome sequencing and periodic "

@@ -207,7 +207,8 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
     out: dict[tuple[str, str], Transcript] = {}
     allowed = {"symbol", "strand", "mane_refseq", "mane_ensembl", "mane_protein", "mane_boundaries_match",
                "mane_end_offsets_nt", "exon_count", "protein_length", "cds_length", "cds_choice", "table_name",
-               "outside_checks", "grch38", "grch37", "grch37_note"}
+               "outside_checks", "grch38", "grch37", "grch37_note", "structure_note", "reference_record",
+               "stop_codon_nt"}
     src_name = str(data.get("structure_source", "")) if isinstance(data, dict) else ""
     for i, t in enumerate(data["transcripts"]):
         w = ("transcripts", i)
@@ -225,14 +226,25 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
         if not isinstance(mbm, bool):
             fail(w + ("mane_boundaries_match",), f"{sym}: mane_boundaries_match must be true or false")
         offs = t.get("mane_end_offsets_nt", [0, 0])
-        if not (isinstance(offs, list) and len(offs) == 2 and all(_int(x) for x in offs)) or (mbm != (offs == [0, 0])):
+        # reference_record: a gene without MANE Select (mitochondrial genes: the rCRS record itself);
+        # its structure is the record's, so there is nothing to offset from
+        no_mane = "reference_record" in t
+        if not (isinstance(offs, list) and len(offs) == 2 and all(_int(x) for x in offs)) or (
+                mbm != (offs == [0, 0]) and not (no_mane and not mbm and offs == [0, 0])):
             fail(w + ("mane_end_offsets_nt",), f"{sym}: mane_end_offsets_nt must be two integers, [0, 0] exactly "
                                                 "when mane_boundaries_match is true")
         pl, cl = t.get("protein_length"), t.get("cds_length")
         if (pl is None) != (cl is None):
             fail(w, f"{sym}: protein_length and cds_length go together")
-        if pl is not None and (not _int(pl) or pl < 1 or not _int(cl) or cl != 3 * (pl + 1)):
-            fail(w + ("cds_length",), f"{sym}: cds_length must be 3 x (protein_length + 1) (stop codon included)")
+        # stop_codon_nt: 3, or 1-2 for a mitochondrial stop codon completed by polyadenylation
+        stop_nt = t.get("stop_codon_nt", 3)
+        if stop_nt not in (1, 2, 3) or isinstance(stop_nt, bool):
+            fail(w + ("stop_codon_nt",), f"{sym}: stop_codon_nt must be 1, 2 or 3")
+        if pl is not None and (not _int(pl) or pl < 1 or not _int(cl) or cl != 3 * pl + stop_nt):
+            fail(w + ("cds_length",), f"{sym}: cds_length must be 3 x protein_length + {stop_nt} (stop codon "
+                                      f"included)")
+        source = (str(t["reference_record"]).split(";")[0] if no_mane else
+                  src_name + ("; terminal exon extended to the MANE Select 3' end" if t.get("structure_note") else ""))
         for build, key in (("GRCh38", "grch38"), ("GRCh37", "grch37")):
             b = t.get(key)
             if b is None:
@@ -258,7 +270,7 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
                 fail(w, f"{sym} is listed twice")
             out[(sym, build)] = Transcript(sym, build, str(b["chrom"]), t["strand"], exons,
                                            str(t.get("mane_refseq", "")), str(t.get("mane_ensembl", "")),
-                                           cs, ce, pl, mbm, tuple(offs), src_name)
+                                           cs, ce, pl, mbm, tuple(offs), source)
     coding = _coding(data.get("coding") or [], fail)
     return TranscriptModel(str(data["name"]), str(data["version"]), hashlib.sha256(raw).hexdigest(), str(p), out,
                            coding)

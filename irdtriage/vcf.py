@@ -791,6 +791,36 @@ def _stream_hits(path: str, kind: str, merged: dict[str, list[tuple[int, int]]],
     return header, hit_lines, hits
 
 
+# The revised Cambridge Reference Sequence (rCRS, NC_012920.1; Andrews RM et al., Nat Genet
+# 1999;23:147) is 16,569 bp: the chrM of GRCh38 and the MT of GRCh37/b37. UCSC hg19's chrM is an
+# older sequence (NC_001807, 16,571 bp; from memory) whose positions differ from the rCRS after
+# about m.300, so its calls cannot be placed on the panel's mitochondrial genes.
+RCRS_LENGTH = 16_569
+HG19_CHRM_LENGTH = 16_571
+
+
+def non_rcrs_chrm(header: pysam.VariantHeader) -> Optional[str]:
+    """A warning when the header declares a mitochondrial contig that is not the rCRS, else None."""
+    for name in header.contigs:
+        if _bare(name) != "MT":
+            continue
+        length = header.contigs[name].length
+        if length is None or length == RCRS_LENGTH:
+            continue
+        what = ("UCSC hg19's chrM (NC_001807), not the revised Cambridge Reference Sequence"
+                if length == HG19_CHRM_LENGTH else "not the revised Cambridge Reference Sequence")
+        return (f"{name} is declared with length {length:,}: {what} (rCRS, NC_012920.1, {RCRS_LENGTH:,} bp) "
+                f"that the panel's mitochondrial genes use; {name} records were NOT read, as their positions "
+                f"would be wrong - realign the mitochondrial reads to the rCRS (GRCh37 'MT' as in b37, or GRCh38 "
+                f"chrM) and call again")
+    return None
+
+
+def _bare(chrom: str) -> str:
+    c = chrom[3:] if chrom.lower().startswith("chr") else chrom
+    return "MT" if c.upper() in ("M", "MT") else c
+
+
 def _aliases(bare_chrom: str) -> list[str]:
     if bare_chrom == "MT":
         return ["MT", "M", "chrM", "chrMT"]
@@ -870,6 +900,10 @@ def read_vcf(
     gene_intervals = panel_intervals(panel, use_build, padding)
     if not narrowed:
         merged = merge_intervals(gene_intervals)
+    mt_problem = non_rcrs_chrm(header)
+    if mt_problem and "MT" in merged:
+        merged = {c: spans for c, spans in merged.items() if c != "MT"}
+        warnings.append(mt_problem)
 
     counts = {k: 0 for k in COUNT_KEYS}
     conv = _Converter(header, samples, path, use_build, proband, gene_intervals)

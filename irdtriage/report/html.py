@@ -278,7 +278,7 @@ def _compact_rows(fs: list[dict], with_gene: bool = True) -> str:
         pos = f"{f.get('chrom')}:{f.get('pos')} {f.get('ref')}>{f.get('alt')}"
         rows.append(f'<tr><td>{e(f.get("id"))}</td>' + (f'<td>{e(f.get("gene"))}</td>' if with_gene else "")
                     + f'<td>{e(hg or "—")}<br><span class="muted small">{e(pos)}</span></td>'
-                    f'<td>{e(zygosity_label(f.get("zygosity"), short=True))}</td>'
+                    f'<td>{e(zygosity_label(f.get("zygosity"), short=True, fraction=f.get("allele_balance")))}</td>'
                     f'<td>{e(fmt(f.get("classification"), "not classified"))}</td>'
                     f'<td class="crit">{e(criteria_compact(f))}</td><td>{e(fmt(f.get("interpretation_status")))}'
                     + (' <span class="small">(candidate non-coding allele)</span>' if f.get("noncoding_candidate") else "")
@@ -339,7 +339,7 @@ def _finding(f: dict) -> str:
         ("Position", f"{f.get('chrom')}:{f.get('pos')} {f.get('ref')}>{f.get('alt')}" + (f" — {orig}" if orig else "")),
         ("HGVS", " ".join(x for x in (f.get("transcript") and f"{f['transcript']}:{f.get('hgvs_c') or ''}", f.get("hgvs_p")) if x) or "—"),
         ("Consequence", fmt(f.get("consequence"))), ("Exon / intron", f"{fmt(f.get('exon'))} / {fmt(f.get('intron'))}"),
-        ("Zygosity (GT)", f"{zygosity_label(f.get('zygosity'))} ({fmt(f.get('genotype'))}{', phased' if f.get('phased') else ''})"),
+        ("Zygosity (GT)", f"{zygosity_label(f.get('zygosity'), fraction=f.get('allele_balance'))} ({fmt(f.get('genotype'))}{', phased' if f.get('phased') else ''})"),
         ("Depth / GQ / allele balance", f"{fmt(f.get('dp'))} / {fmt(f.get('gq'))} / {fmt(f.get('allele_balance'))}"),
         ("Filters / quality flags", f"{fmt(f.get('filters'))} / {fmt(f.get('quality_flags'), 'none')}"),
         ("Family", fam_txt),

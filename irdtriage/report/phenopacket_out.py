@@ -249,6 +249,8 @@ def _genomic_interpretation(result: dict, f: dict, gene: dict, subject_id: str) 
             rec["qual"] = f"{float(f['qual']):g}"  # a string in the VcfRecord message
         if f.get("filters"):
             rec["filter"] = ";".join(f["filters"])
+        if f.get("zygosity") in ("homoplasmic", "heteroplasmic") and isinstance(f.get("allele_balance"), (int, float)):
+            rec["info"] = f"AF={float(f['allele_balance']):.3f}"  # heteroplasmy level: share of reads (VCF 4.2 AF)
         vd["vcfRecord"] = rec
     vd["moleculeContext"] = "genomic"
     if f.get("structural"):  # copy-number / structural finding: VRS copy number, SO type, symbolic record

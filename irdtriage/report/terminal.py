@@ -125,7 +125,7 @@ def _finding_line(f: dict) -> Text:
     hg = " ".join(x for x in (f.get("hgvs_c"), f.get("hgvs_p")) if x)
     if hg:
         t.append(hg + " ")
-    t.append(f"{zygosity_label(f.get('zygosity'), short=True)} ")
+    t.append(f"{zygosity_label(f.get('zygosity'), short=True, fraction=f.get('allele_balance'))} ")
     cls = f.get("classification")
     t.append(f"{CLASS_SHORT.get(cls, fmt(cls))} ", style=ST_MARK)
     pts = f.get("points")

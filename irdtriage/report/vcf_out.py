@@ -55,6 +55,7 @@ INFO_FIELDS = [
     ("IRDT_ORIG", "1", "String", "Original input representation pos|ref|alts|allele_index (percent-encoded) when it differs"),
     ("IRDT_ZYG", "1", "String", "Allelic state of the proband's call: heterozygous, homozygous, hemizygous, homoplasmic, "
      "heteroplasmic, haploid%20call (one allele where two copies are expected), reference, no%20call (percent-encoded)"),
+    ("IRDT_HPL", "1", "Float", "Heteroplasmy level of a mitochondrial call: share of the proband's reads carrying this allele (AD)"),
 ]
 FORMAT_FIELDS = [
     ("GT", "1", "String", "Genotype"),
@@ -283,6 +284,8 @@ def _annotate(r, f: dict, gene: Optional[dict]) -> None:
     info["IRDT_STATUS"] = encode(f.get("interpretation_status") or "UNKNOWN_STATUS")
     if f.get("zygosity"):
         info["IRDT_ZYG"] = encode(f["zygosity"])
+        if f["zygosity"] in ("homoplasmic", "heteroplasmic") and isinstance(f.get("allele_balance"), (int, float)):
+            info["IRDT_HPL"] = round(float(f["allele_balance"]), 4)
     if f.get("quality_flags"):
         info["IRDT_QFLAG"] = tuple(encode(q) for q in f["quality_flags"])
     o = f.get("original") or {}

@@ -107,6 +107,10 @@ def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_table
     assert len(fresh["transcripts"]) + len(fresh["skipped"]) == len(panel)
     for t in fresh["transcripts"]:
         tx = model.get(t["symbol"], "GRCh38")
+        if "reference_record" in t:  # mitochondrial genes: no MANE Select; the rCRS span of the panel
+            g = panel[t["symbol"]]
+            assert tx.chrom == "MT" and tx.exons == ((g["grch38"]["start"], g["grch38"]["end"]),)
+            continue
         m = mane[t["symbol"]]
         assert (tx.chrom, tx.strand) == (m["chrom"], m["strand"]) == (tx.chrom, panel[t["symbol"]]["strand"])
         ends = (tx.exons[0][0], tx.exons[-1][1]) == (m["start"], m["end"])
@@ -179,9 +183,19 @@ def test_packaged_coding_matches_records(records):
 # * USH2A: 5,202 residues (NG_009497.1 GFF3, NM_206933.2; the MANE protein NP_996816.3 has the same
 #   CDS ends here).
 # * From memory (UniProt canonical lengths): RHO 348, RPE65 533, ABCA4 2273, CEP290 2479,
-#   RPGRIP1 1286, BBS1 593, PRPF31 499, CLN3 438, GUCY2D 1103, CRB1 1406, MKKS 570.
+#   RPGRIP1 1286, BBS1 593, PRPF31 499, CLN3 438, GUCY2D 1103, CRB1 1406, MKKS 570; genes whose
+#   CDS was chosen among tied candidates by UTR rows spread over several exons: WFS1 890, MFN2 757,
+#   IFT140 1462, IQCB1 598, BEST1 585, KCNJ13 360, CTNNA1 906, OAT 439, PIBF1 757, TMEM138 162;
+#   RPGR 1152 (the ORF15 isoform of MANE Select NM_001034853.2; Vervoort R et al., Nat Genet
+#   2000;25:462-466); genes whose structure is the GENCODE transcript with the MANE Select span:
+#   TMEM126A 195, RDH5 318, EYS 3144, TTLL5 1281, ARSG 525, CEP164 1460, SCAPER 1400, NRL 237,
+#   MVK 396, PEX5 639, SEMA4A 761, SLC38A8 435, KLC4 619.
 FROM_MEMORY = {"RHO": 348, "RPE65": 533, "ABCA4": 2273, "CEP290": 2479, "RPGRIP1": 1286, "BBS1": 593,
-               "PRPF31": 499, "CLN3": 438, "GUCY2D": 1103, "CRB1": 1406, "MKKS": 570}
+               "PRPF31": 499, "CLN3": 438, "GUCY2D": 1103, "CRB1": 1406, "MKKS": 570,
+               "WFS1": 890, "MFN2": 757, "IFT140": 1462, "IQCB1": 598, "BEST1": 585, "KCNJ13": 360,
+               "CTNNA1": 906, "OAT": 439, "PIBF1": 757, "TMEM138": 162, "RPGR": 1152,
+               "TMEM126A": 195, "RDH5": 318, "EYS": 3144, "TTLL5": 1281, "ARSG": 525, "CEP164": 1460,
+               "SCAPER": 1400, "NRL": 237, "MVK": 396, "PEX5": 639, "SEMA4A": 761, "SLC38A8": 435, "KLC4": 619}
 
 
 @pytest.mark.parametrize("symbol,length", sorted(FROM_MEMORY.items()))
@@ -216,3 +230,16 @@ def test_outside_hgvs_positions_agree(gene_tables):
         assert not bad, bad
         checked += sum(ok.values())
     assert checked >= 130  # RPGRIP1 63, CLN3 31, BBS1 17, PRPF31 9 SNVs, RS1 16 (8 rows x 2 builds)
+
+
+def test_rpgr_orf15_terminal_exon_reaches_the_mane_end(tables):
+    """RPGR's MANE Select (NM_001034853.2, ORF15 isoform) ends in the long ORF15 exon, which runs
+    on from exon 15 through the next intron of the constitutive transcript (Vervoort et al. 2000,
+    from memory); the structure's 3' end is MANE's and the CDS ends inside that exon."""
+    s, mane, _ = tables
+    tx = load_transcripts().get("RPGR", "GRCh38")
+    m = mane["RPGR"]
+    assert tx.exon_count == 15 and tx.exons[0][0] == m["start"]  # minus strand: 3' end is the lowest
+    assert tx.exons[0][0] <= tx.cds_start <= tx.exons[0][1]
+    g37 = load_transcripts().get("RPGR", "GRCh37")
+    assert [e - b for b, e in g37.exons] == [e - b for b, e in tx.exons] and g37.protein_length == 1152
