@@ -479,6 +479,9 @@ def _not_reported(f: models.Finding, curated: dict) -> Optional[str]:
         splice = f.evidence.get("spliceai_max") if isinstance(f.evidence, dict) else None
         asserted = any(c.code in ("PS1", "PP5") and c.met for c in f.criteria)
         offset = intron_offset(f.annotation.hgvs_c)
+        extra = f.annotation.extra or {}
+        if offset is None and extra.get("splice_side") == "intron" and str(extra.get("splice_distance", "")).isdigit():
+            offset = int(extra["splice_distance"])  # built-in annotation of an indel without reference: no c.
         near_exon = offset is not None and offset <= NEAR_EXON_NT
         if (splice is None or splice < SPLICE_SIGNAL) and not asserted and not near_exon:
             return "noncoding_not_reported"

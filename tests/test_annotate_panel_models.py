@@ -275,3 +275,27 @@ def test_triage_default_models_with_reference_only(ush2a, tmp_path):
     b = res["built_in_annotation"]
     assert b["model_kind"] == "panel" and "panel transcript structure" in b["transcript_models"]
     assert b["alleles_annotated"] == 2 and b["reference"] == str(fa)
+
+
+# --- safety: without a reference, a CDS substitution's effect stays unknown -----------------------
+def test_default_models_without_reference_never_make_a_candidate(tmp_path):
+    """The unannotated RPE65/RHO records of tests/test_unannotated_input.py, now with the default
+    panel models: c. and exon numbers are computed, but a substitution's amino-acid change
+    (missense, synonymous or stop) is not, and with no population frequency either the allele
+    cannot support an explanation (ACMG/AMP 2015, Richards et al., Genet Med 2015;17:405-424:
+    population data and predicted consequence come first), so it stays UNKNOWN_STATUS."""
+    from test_unannotated_input import HEADER, RECORDS
+
+    vcf = tmp_path / "p1.vcf"
+    vcf.write_text("\n".join(HEADER + RECORDS) + "\n")
+    out = tmp_path / "out"
+    proc = _cli("triage", str(vcf), "--hpo", "HP:0000510", "--formats", "json", "--out", str(out))
+    assert proc.returncode == 0, proc.stderr
+    res = json.loads((out / "result.json").read_text())
+    assert res["built_in_annotation"]["model_kind"] == "panel" and res["built_in_annotation"]["reference"] is None
+    assert {f["gene"] for f in res["findings"]} == {"RPE65", "RHO"}
+    for f in res["findings"]:
+        assert f["annotation_source"] == "built-in" and f["hgvs_c"].startswith("c.") and f["hgvs_p"] == "p.?"
+        assert f["consequence"] == ["coding_sequence_variant"]
+        assert f["interpretation_status"] == "UNKNOWN_STATUS", f["id"]
+    assert "Candidate explanation" not in res["case"]["summary"]
