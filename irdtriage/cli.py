@@ -167,9 +167,12 @@ def build_parser() -> argparse.ArgumentParser:
     t.add_argument("--all-variants", action="store_true",
                    help="also report common alleles (BA1) and intronic/flanking alleles without splice evidence")
     t.add_argument("--reference", metavar="FASTA",
-                   help="reference FASTA for built-in annotation of records without CSQ/ANN (needs --transcripts)")
+                   help="reference FASTA for built-in annotation of records without CSQ/ANN (without it "
+                        "amino-acid changes and indel HGVS c. are left unknown)")
     t.add_argument("--transcripts", metavar="FILE",
-                   help="GFF3/GTF transcript models for built-in annotation of records without CSQ/ANN")
+                   help="GFF3/GTF transcript models for built-in annotation of records without CSQ/ANN "
+                        "(default: the panel's own exon/CDS structure, panels/transcripts.yaml; 'none': no "
+                        "built-in annotation)")
     add_output_opts(t, "irdtriage-results")
 
     rs = sub.add_parser("resources", help="build or show a local evidence bundle",
@@ -220,13 +223,17 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--out", metavar="DIR", help="output folder (default: beside the result)")
     r.add_argument("--phenopacket", metavar="FILE", help="input phenopacket to extend with interpretations")
 
-    an = sub.add_parser("annotate", help="add consequence and HGVS (CSQ INFO field) from a reference FASTA and "
-                                         "GFF3/GTF transcripts", epilog=CAUTION)
+    an = sub.add_parser("annotate", help="add consequence and HGVS (CSQ INFO field) from transcript models and "
+                                         "a reference FASTA", epilog=CAUTION)
     an.add_argument("vcf", help="VCF/BCF without CSQ/ANN annotation")
     an.add_argument("--reference", metavar="FASTA",
                     help="reference FASTA of the VCF's build (plain or bgzipped; without it amino-acid "
                          "changes and indel HGVS are left unknown)")
-    an.add_argument("--transcripts", metavar="FILE", required=True, help="transcript models: GFF3 or GTF")
+    an.add_argument("--transcripts", metavar="FILE",
+                    help="transcript models: GFF3 or GTF (default: the panel's own exon/CDS structure, "
+                         "panels/transcripts.yaml, for the VCF's build)")
+    an.add_argument("--build", choices=("GRCh37", "GRCh38"),
+                    help="genome build of the panel structure (default: detected from the VCF header)")
     an.add_argument("--placement", metavar="SEQID=CHROM:ANCHOR:STRAND", action="append", default=[],
                     help="place a gene-orientation record's coordinates on the genome (e.g. "
                          "NG_009497.1=1:216428397:-); repeatable")
@@ -424,14 +431,16 @@ def cmd_triage(args, argv) -> int:
         resources=args.resources, online=args.online, online_cache=args.online_cache,
         offline_replay=args.offline_replay, online_url=args.online_url, online_expire_days=args.cache_days,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
-        reference=args.reference, transcripts_path=args.transcripts,
+        reference=args.reference, transcripts_path=None if args.transcripts == "none" else args.transcripts,
+        panel_models=args.transcripts != "none",
     )
-    if args.reference and not args.transcripts:
-        raise InputError("--reference needs --transcripts (the transcript models to annotate with)", args.reference)
+    if args.reference and args.transcripts == "none":
+        raise InputError("--reference needs transcript models (--transcripts none turns them off)", args.reference)
     inputs = [("VCF", args.vcf), ("phenopacket", args.phenopacket), ("PED", args.ped), ("panel", args.panel),
               ("rules", args.rules), ("curated evidence", args.curated),
               ("population-frequency VCF", args.population_vcf), ("clinical-assertion VCF", args.clinical_vcf),
-              ("reference FASTA", args.reference), ("transcript", args.transcripts),
+              ("reference FASTA", args.reference),
+              ("transcript", None if args.transcripts == "none" else args.transcripts),
               ("structural-variant VCF", args.sv_vcf)]
     inputs += [("score table", p.split("=", 1)[-1]) for p in args.scores]
     if args.resources and not os.path.isdir(args.resources):
@@ -499,6 +508,22 @@ def _render_manifest(console, folder: str, m: dict) -> None:
     say(CAUTION)
 
 
+def _annotate_build(vcf: str, wanted):
+    import pysam
+
+    from .build import resolve_build
+
+    try:
+        with pysam.VariantFile(vcf) as vf:
+            build, _, _ = resolve_build(vf.header, wanted, vcf)
+    except (OSError, ValueError) as e:
+        raise InputError(f"cannot read the VCF ({e})", vcf) from None
+    if build is None:
+        raise InputError("the VCF header does not say its genome build; name it with --build "
+                         "(the panel structure has GRCh38 and GRCh37 coordinates)", vcf)
+    return build
+
+
 def cmd_annotate(args, argv) -> int:
     from .annotate.annotate import Annotator
     from .annotate.providers import parse_placement
@@ -510,7 +535,10 @@ def cmd_annotate(args, argv) -> int:
     if os.path.abspath(args.out) in {os.path.abspath(p) for p in (args.vcf, args.reference, args.transcripts) if p}:
         raise InputError("the output would overwrite an input", args.out)
     placements = dict(parse_placement(p) for p in args.placement)
-    annotator = Annotator(args.transcripts, args.reference, placements)
+    build = args.build
+    if not args.transcripts:  # the panel's own structure: the VCF's build decides which coordinates
+        build = _annotate_build(args.vcf, args.build)
+    annotator = Annotator(args.transcripts, args.reference, placements, build=build)
     try:
         counts = annotate_vcf(args.vcf, args.out, annotator,
                               command="irdtriage " + " ".join(shlex.quote(a) for a in argv))

@@ -58,6 +58,7 @@ class TriageOptions:
     phenotype_matcher: Any = None  # reuse a loaded matcher across cases (benchmarks)
     reference: Optional[str] = None  # FASTA for built-in annotation (irdtriage.annotate)
     transcripts_path: Optional[str] = None  # GFF3/GTF for built-in annotation of records without CSQ/ANN
+    panel_models: bool = True  # without transcripts_path: annotate with the panel's own structure
     loaded_panel: Any = None  # reuse a panel loaded from panel_path/genes across cases (irdtriage.cohort workers)
     loaded_rules: Any = None  # reuse rules loaded from rules_path across cases (irdtriage.cohort workers)
     extra_warnings: list[str] = field(default_factory=list)
@@ -174,13 +175,21 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
         from .regions import CodingRegions, load_exons
 
         regions = CodingRegions(load_exons(), panel, intake.build)
+    # built-in annotation for records without CSQ/ANN (irdtriage.annotate): the GFF3/GTF the user
+    # names, else the panel's own transcript structure for the run's build (opened when first needed)
     annotator = None
-    if opts.transcripts_path:  # built-in annotation for records without CSQ/ANN (irdtriage.annotate)
+    built_in_count = 0
+    mane_ids = [a for g in panel.genes.values() for a in (g.refseq_transcript, g.ensembl_transcript) if a]
+
+    def open_annotator():
         from .annotate.annotate import Annotator
 
-        annotator = Annotator(opts.transcripts_path, opts.reference)
-        warnings.append(annotator.describe() + ": used for records without CSQ/ANN")
-        mane_ids = [a for g in panel.genes.values() for a in (g.refseq_transcript, g.ensembl_transcript) if a]
+        a = Annotator(opts.transcripts_path, opts.reference, build=intake.build, genes=list(panel.genes))
+        warnings.append(a.describe() + ": used for records without CSQ/ANN")
+        return a
+
+    if opts.transcripts_path or (opts.panel_models and not layouts):
+        annotator = open_annotator()
     concordance = None
     if annotator is not None and any(k in layouts for k in ("CSQ", "ANN")):
         from .annotate.concordance import Concordance
@@ -216,6 +225,8 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                 outside_regions += 1
                 continue
         annotation = pick_annotation(variant, layouts, panel, genes_here)
+        if annotator is None and annotation.source == "none" and opts.panel_models:
+            annotator = open_annotator()  # an annotated VCF with a record that lacks CSQ/ANN
         if annotator is not None and annotation.source == "none":
             other = annotator.check_ref(variant.chrom, variant.pos, variant.ref)
             if other is not None:  # wrong build or FASTA: no annotation rather than a wrong one
@@ -224,6 +235,7 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
                 built = annotator.annotation_for(variant.chrom, variant.pos, variant.ref, variant.alt, genes_here,
                                                  mane_ids)
                 annotation = built or annotation
+                built_in_count += built is not None
         elif concordance is not None:  # the VCF's own CSQ/ANN against the built-in annotation
             concordance.add(variant, all_annotations(variant, layouts, panel),
                             annotator.consequences(variant.chrom, variant.pos, variant.ref, variant.alt))
@@ -422,6 +434,11 @@ def run(vcf_path: str, opts: TriageOptions) -> dict[str, Any]:
     res["phenotype"]["term_changes"] = term_changes
     res["evidence_sources"] = evidence_sources
     res["annotation_concordance"] = concordance.to_dict() if concordance is not None else None
+    res["built_in_annotation"] = None if annotator is None else {
+        "transcript_models": annotator.model_source,
+        "model_kind": "file" if opts.transcripts_path else "panel",
+        "transcripts": len(annotator.transcripts),
+        "reference": opts.reference, "alleles_annotated": built_in_count}
     # what the input could not support, first in the result so every output shows it first
     return {"schema_version": res.pop("schema_version"), "input_limits": limits, **res}
 
@@ -462,6 +479,9 @@ def _not_reported(f: models.Finding, curated: dict) -> Optional[str]:
         splice = f.evidence.get("spliceai_max") if isinstance(f.evidence, dict) else None
         asserted = any(c.code in ("PS1", "PP5") and c.met for c in f.criteria)
         offset = intron_offset(f.annotation.hgvs_c)
+        extra = f.annotation.extra or {}
+        if offset is None and extra.get("splice_side") == "intron" and str(extra.get("splice_distance", "")).isdigit():
+            offset = int(extra["splice_distance"])  # built-in annotation of an indel without reference: no c.
         near_exon = offset is not None and offset <= NEAR_EXON_NT
         if (splice is None or splice < SPLICE_SIGNAL) and not asserted and not near_exon:
             return "noncoding_not_reported"

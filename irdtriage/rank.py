@@ -139,8 +139,13 @@ FREQUENCY_CODES = ("BA1", "BS1", "BS2", "PM2")
 
 
 def consequence_unknown(f: Finding) -> bool:
-    """No consequence annotation for this allele (the VCF had no CSQ/ANN for it)."""
+    """No consequence annotation for this allele (the VCF had no CSQ/ANN for it), or built-in
+    annotation without a reference sequence that could only say "somewhere in the CDS" (a
+    substitution whose amino-acid change is unknown: missense, synonymous or stop alike)."""
     terms = tuple(f.annotation.consequence or ())
+    if f.annotation.source == "built-in":
+        return terms == ("coding_sequence_variant",) and f.annotation.hgvs_p in ("p.?", "") \
+            and "no reference sequence" in f.annotation.extra.get("notes", "")
     return f.annotation.source == "none" and (not terms or terms == ("not annotated",))
 
 

@@ -236,18 +236,26 @@ def pick(anns: list[Annotation], candidate_genes: list[str]) -> Optional[Annotat
 
 
 class Annotator:
-    """Built-in annotation for the pipeline: a transcript file (and optionally a reference FASTA)
-    the user names, opened once."""
+    """Built-in annotation for the pipeline: transcript models (a GFF3/GTF the user names, else
+    the panel's own structure for ``build``) and optionally a reference FASTA, opened once."""
 
-    def __init__(self, transcripts_path: str, reference_path: Optional[str] = None,
-                 placements: Optional[dict] = None):
+    def __init__(self, transcripts_path: Optional[str] = None, reference_path: Optional[str] = None,
+                 placements: Optional[dict] = None, build: Optional[str] = None,
+                 genes: Optional[Iterable[str]] = None):
         from .providers import FastaSequence, read_gff
 
-        self.transcripts = read_gff(transcripts_path, placements)
-        if not len(self.transcripts):
-            from ..errors import InputError
+        if transcripts_path:
+            self.transcripts = read_gff(transcripts_path, placements)
+            if not len(self.transcripts):
+                from ..errors import InputError
 
-            raise InputError("no transcript with exons found", transcripts_path)
+                raise InputError("no transcript with exons found", transcripts_path)
+            self.model_source = transcripts_path
+        else:  # the panel's own exon/CDS table (irdtriage.annotate.panel_models)
+            from .panel_models import panel_transcripts
+
+            self.transcripts = panel_transcripts(build or "GRCh38", genes=genes)
+            self.model_source = self.transcripts.source
         self.reference = FastaSequence(reference_path) if reference_path else None
         self.cache = TxCache(self.reference)
         self.transcripts_path, self.reference_path = transcripts_path, reference_path
@@ -274,7 +282,7 @@ class Annotator:
 
     def describe(self) -> str:
         ref = self.reference_path or "no reference FASTA (amino-acid changes unknown)"
-        return f"built-in annotation from {self.transcripts_path} ({len(self.transcripts)} transcripts) and {ref}"
+        return f"built-in annotation from {self.model_source} ({len(self.transcripts)} transcripts) and {ref}"
 
     def close(self) -> None:
         if self.reference is not None:
