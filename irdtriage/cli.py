@@ -401,6 +401,20 @@ def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optiona
 
 def _tier_genes(args) -> tuple[Optional[list[str]], list[str]]:
     """Genes to triage after --genes and --tier, and a warning naming what the tier left out."""
+    genes, warnings, _panel = _tier_panel(args)
+    return genes, warnings
+
+
+def _tier_panel(args):
+    """(genes, warnings, panel): as :func:`_tier_genes`, plus the panel restricted to those genes,
+    so that ``triage`` reads the panel files once."""
+    from .panel import select_genes
+
+    genes, warnings, panel = _tier_selection(args)
+    return genes, warnings, select_genes(panel, genes) if genes is not None else panel
+
+
+def _tier_selection(args):
     from .panel import genes_at_tier, load_panel
 
     genes = parse_gene_option(args.genes) if args.genes else None
@@ -409,20 +423,20 @@ def _tier_genes(args) -> tuple[Optional[list[str]], list[str]]:
         # genes named with --genes are triaged whatever their evidence level; say so for disputed ones
         disputed = [s for s, g in panel.genes.items() if g.evidence_level == "disputed"]
         return genes, ([f"--genes names gene(s) whose link to disease is disputed: {', '.join(disputed)}"]
-                       if disputed else [])
+                       if disputed else []), panel
     keep = genes_at_tier(panel, args.tier)
     dropped = [s for s in panel.genes if s not in keep]
     if not dropped:
-        return genes, []
+        return genes, [], panel
     if not keep:
         raise InputError(f"no panel gene is at evidence tier {args.tier or 'limited'} or above", panel.source)
     tier = args.tier or "limited (default)"
     return keep, [f"evidence tier {tier}: {len(keep)} of {len(panel.genes)} panel genes triaged; "
-                  f"left out: {', '.join(dropped[:12])}{' ...' if len(dropped) > 12 else ''}"]
+                  f"left out: {', '.join(dropped[:12])}{' ...' if len(dropped) > 12 else ''}"], panel
 
 
 def cmd_triage(args, argv) -> int:
-    genes, tier_warnings = _tier_genes(args)
+    genes, tier_warnings, panel = _tier_panel(args)
     kwargs = dict(
         sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
@@ -432,7 +446,7 @@ def cmd_triage(args, argv) -> int:
         offline_replay=args.offline_replay, online_url=args.online_url, online_expire_days=args.cache_days,
         command="irdtriage " + " ".join(shlex.quote(a) for a in argv), extra_warnings=tier_warnings,
         reference=args.reference, transcripts_path=None if args.transcripts == "none" else args.transcripts,
-        panel_models=args.transcripts != "none",
+        panel_models=args.transcripts != "none", loaded_panel=panel,
     )
     if args.reference and args.transcripts == "none":
         raise InputError("--reference needs transcript models (--transcripts none turns them off)", args.reference)

@@ -524,6 +524,20 @@ def load_panel(
     return panel
 
 
+def select_genes(panel: Panel, genes: Optional[Iterable[str]]) -> Panel:
+    """The panel restricted to ``genes`` exactly as ``load_panel(path, genes=genes)`` would give it
+    (same hash, source and subset mark), without reading the files again."""
+    if genes is None:
+        return panel
+    total = getattr(panel, "_selected_from", None) or len(panel.genes)
+    out = _select(panel.genes, genes, Path(panel.source))
+    sub = Panel(name=panel.name, version=panel.version, sha256=panel.sha256, genes=out,
+                cascade=panel.cascade, source=panel.source, excluded=panel.excluded)
+    if len(out) < total:
+        object.__setattr__(sub, "_selected_from", total)
+    return sub
+
+
 def _excluded(doc: dict, path: Path, on_panel: set[str]) -> dict[str, str]:
     """The panel file's ``excluded:`` list (symbol -> reason); empty when absent."""
     raw = doc.get("excluded")

@@ -39,6 +39,8 @@ from typing import Optional, Union
 
 import numpy as np
 
+from .cache import cache_dir  # noqa: F401  (re-exported: the model is cached there)
+
 FORMAT = 3
 EYE_ROOT = "HP:0000478"  # Abnormality of the eye: the null pool (see irdtriage.phenotype)
 SHIPPED = Path(__file__).with_name("data") / "phenotype_model.npz"
@@ -59,14 +61,6 @@ def hpo3_version() -> str:
         return metadata.version("hpo3")
     except metadata.PackageNotFoundError:
         return ""
-
-
-def cache_dir() -> Path:
-    """Per-user cache folder: $IRDTRIAGE_CACHE, else $XDG_CACHE_HOME/irdtriage, else ~/.cache/irdtriage."""
-    if os.environ.get("IRDTRIAGE_CACHE"):
-        return Path(os.environ["IRDTRIAGE_CACHE"])
-    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
-    return Path(base) / "irdtriage"
 
 
 def _blob(strings: list[str]) -> tuple[np.ndarray, np.ndarray]:

@@ -39,7 +39,7 @@ from typing import Any, Optional
 import yaml
 
 from .errors import InputError
-from .yamlio import package_data_path, read_yaml
+from .yamlio import package_data_path, read_yaml, read_yaml_fast
 
 BUILDS = ("GRCh38", "GRCh37")
 NMD_NT = 50  # Abou Tayoun et al. 2018
@@ -192,10 +192,12 @@ def _exons(raw: Any, fail, where: tuple) -> tuple[tuple[int, int], ...]:
 def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
     """Load and validate a transcript file; every problem is an InputError naming file and line."""
     p = Path(path) if path else default_path()
-    raw, node, data = read_yaml(p, "transcript file")
+    raw, node, data = read_yaml_fast(p, "transcript file")
 
     def fail(where: tuple, problem: str):
-        raise InputError(problem, str(p), _line(node, where))
+        # data from the JSON cache has no node: read the YAML again for the line number
+        n = node if node is not None else read_yaml(p, "transcript file")[1]
+        raise InputError(problem, str(p), _line(n, where))
 
     if not isinstance(data, dict):
         fail((), "transcript file must be a mapping")
