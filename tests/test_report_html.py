@@ -220,5 +220,8 @@ def test_every_zygosity_has_a_label(zygosity, short, full):
     r = json.loads(FIXTURE.read_text())
     f = r["findings"][0]
     f["zygosity"] = zygosity
-    assert f"<td>{short}</td>" in html_mod._compact_rows([f])
-    assert f"{full} (" in _text_of(r)  # finding facts: "<label> (GT)"
+    mito = zygosity in ("homoplasmic", "heteroplasmic")
+    if mito:
+        f["allele_balance"] = 0.48  # the mtDNA labels carry the level read from the allele balance
+    assert f"<td>{short}{' 48 %' if mito else ''}</td>" in html_mod._compact_rows([f])
+    assert f"{full}{', 48 % of reads' if mito else ''} (" in _text_of(r)  # finding facts: "<label> (GT)"
