@@ -29,7 +29,7 @@ from typing import Any, Optional, Union
 
 from .errors import InputError
 from .models import Panel
-from .panel import CHROMOSOMES, _bare_chrom, _line, _read_yaml, normalise_build
+from .panel import CHROMOSOMES, _bare_chrom, _line, _read_yaml, _with_lines, normalise_build
 from .yamlio import package_data_path
 
 # Splice-region padding into each intron (bp).  20 bp reaches the acceptor region up to -20 and
@@ -104,8 +104,12 @@ def _exons(raw: Any, p: Path, line: Optional[int], what: str) -> tuple[tuple[int
 
 def load_exons(path: Optional[PathLike] = None) -> ExonModel:
     """Read and validate an exon model (default: the packaged ``panels/exons.yaml``)."""
+    return _with_lines(_load_exons, path)
+
+
+def _load_exons(path: Optional[PathLike] = None, fast: bool = False) -> ExonModel:
     p = Path(path) if path is not None else default_path()
-    data, doc = _read_yaml(p)
+    data, doc = _read_yaml(p, fast)
     if not isinstance(doc, dict):
         raise InputError("exon model must be a mapping with name, version, genes, missing", p, _line(doc))
     _keys(doc, TOP_REQUIRED, TOP_OPTIONAL, p, "exon model")

@@ -1,4 +1,6 @@
+import os
 import sys
+import tempfile
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -9,6 +11,11 @@ if str(ROOT) not in sys.path:
 REFDATA = ROOT.parent / "shared" / "refdata"
 
 EXTERNAL_DIR = ROOT / "tests" / "external"
+
+# The tool keeps derived files (parsed YAML, a phenotype model for another hpo3 release) in a
+# per-user cache; the tests and the commands they start use a fresh one of their own instead of
+# the user's (inherited by subprocesses through the environment).
+os.environ["IRDTRIAGE_CACHE"] = tempfile.mkdtemp(prefix="irdtriage-test-cache-")
 
 
 def pytest_collection_modifyitems(config, items):

@@ -143,7 +143,7 @@ def test_built_on_first_use_into_the_user_cache(tmp_path, monkeypatch):
     monkeypatch.setattr(pm, "SHIPPED", tmp_path / "absent.npz")
     monkeypatch.setenv("IRDTRIAGE_CACHE", str(tmp_path / "cache"))
     built = pm._locate()
-    files = sorted(p.name for p in (tmp_path / "cache").iterdir())
+    files = sorted(p.name for p in (tmp_path / "cache").iterdir() if p.is_file())  # (yaml/: parsed panel files)
     assert files == [f"phenotype_model-hpo3-{hpo3_version()}-f{pm.FORMAT}.npz"]
     again = pm._locate()
     shipped = PhenotypeModel.load(SHIPPED)

@@ -57,3 +57,29 @@ def test_data_that_json_changes_is_not_cached(cache, tmp_path):
     _, _, data = read_yaml_fast(y, "x")
     assert not list(cache.rglob("*.json"))
     assert str(data["when"]) == "2026-12-02" and not isinstance(data["when"], str)
+
+
+def test_panel_error_names_line_from_cache(cache, tmp_path):
+    # A panel whose parsed form is in the cache still reports a bad value with its line.
+    import shutil
+
+    from irdtriage.panel import default_cascade_path, default_panel_path, load_panel
+
+    text = default_panel_path().read_text(encoding="utf-8")
+    line = next(i for i, ln in enumerate(text.splitlines(), 1) if "evidence_level: established" in ln)
+    bad = tmp_path / "genes.yaml"
+    bad.write_text(text.replace("evidence_level: established", "evidence_level: bogus", 1), encoding="utf-8")
+    shutil.copy(default_cascade_path(), tmp_path / "cascade.yaml")
+    msgs = []
+    for _ in range(2):  # parse (and cache), then cache hit
+        with pytest.raises(InputError) as e:
+            load_panel(bad)
+        msgs.append(str(e.value))
+    assert list(cache.rglob("lines-*.json")), "the parsed panel is cached"
+    assert msgs[0] == msgs[1] and f":{line}:" in msgs[0] and "bogus" in msgs[0]
+
+
+def test_panel_same_from_cache(cache):
+    from irdtriage.panel import load_panel
+
+    assert load_panel() == load_panel()  # parse, then cache hit
