@@ -585,17 +585,13 @@ def assess_gene(gene: Gene, findings: Sequence[Finding], proband: str, sex: Opti
         spec = specs.get(mode)
         if spec is None:
             return pool
-        keep = []
-        for f, c in pool:
-            ok, why = mode_accepts(spec, f)
-            if ok:
-                keep.append((f, c))
-            elif mode in modes:
-                carrier = (" (it stays a recessive carrier allele)" if mode in ("AD", "XLD") and
-                           any(m in ("AR", "XLR") for m in modes) else "")
-                note = f"{f.id} not counted for {mode}: {why}{carrier}"
-                if note not in notes:
-                    notes.append(note)
+        keep, refused = split_by_mode(spec, pool)
+        for f, why in refused if mode in modes else ():
+            carrier = (" (it stays a recessive carrier allele)" if mode in ("AD", "XLD") and
+                       any(m in ("AR", "XLR") for m in modes) else "")
+            note = f"{f.id} not counted for {mode}: {why}{carrier}"
+            if note not in notes:
+                notes.append(note)
         return keep
 
     def fit_for(mode: str) -> GenotypeAssessment:
@@ -828,14 +824,22 @@ def accepted_mt(gene: Gene, alleles: list, notes: list[str]) -> list:
     spec = modes_of(gene).get("MT")
     if spec is None:
         return alleles
-    keep = []
-    for f, c in alleles:
+    keep, refused = split_by_mode(spec, alleles)
+    notes.extend(f"{f.id} not counted for MT: {why}" for f, why in refused)
+    return keep
+
+
+def split_by_mode(spec, pool: list) -> tuple[list, list]:
+    """(the (finding, call) pairs whose allele class causes the mode's disease, [(finding, why
+    not)] for the others), in pool order."""
+    keep, refused = [], []
+    for f, c in pool:
         ok, why = mode_accepts(spec, f)
         if ok:
             keep.append((f, c))
         else:
-            notes.append(f"{f.id} not counted for MT: {why}")
-    return keep
+            refused.append((f, why))
+    return keep, refused
 
 
 def _pct(x: Optional[float]) -> str:
