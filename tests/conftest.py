@@ -18,6 +18,13 @@ EXTERNAL_DIR = ROOT / "tests" / "external"
 os.environ["IRDTRIAGE_CACHE"] = tempfile.mkdtemp(prefix="irdtriage-test-cache-")
 
 
+def pytest_sessionfinish(session, exitstatus):
+    """Remove the tests' cache folder (made above) when the session ends."""
+    import shutil
+
+    shutil.rmtree(os.environ["IRDTRIAGE_CACHE"], ignore_errors=True)
+
+
 def pytest_collection_modifyitems(config, items):
     """Every check under tests/external reads outside reference data: mark it ``external``
     (each module also skips, with the reason, when its ../shared/refdata files are absent)."""
