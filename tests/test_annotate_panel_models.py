@@ -40,15 +40,13 @@ import pytest
 from irdtriage.annotate.annotate import TxCache, annotate_allele
 from irdtriage.annotate.hgvs_c import TxMap
 from irdtriage.annotate.panel_models import panel_transcripts, to_model
-from irdtriage.annotate.providers import Placement, RegionSequence, TranscriptSet, read_gff, revcomp
+from irdtriage.annotate.providers import TranscriptSet, revcomp
 from irdtriage.transcripts import Transcript, TranscriptModel
 
 ROOT = Path(__file__).resolve().parents[1]
-REFDATA = ROOT.parent / "shared" / "refdata"
+sys.path.insert(0, str(ROOT / "tests"))
+from refseqgene_data import LRG, REFDATA, load_ush2a, need  # noqa: E402
 EREPO = REFDATA / "clingen_erepo" / "erepo_dev.tsv.gz"
-LRG = REFDATA / "refseqgene" / "LRG_702.xml"
-NG_FASTA, NG_GFF = REFDATA / "refseqgene" / "NG_009497.1.fasta.gz", REFDATA / "refseqgene" / "NG_009497.1.gff3"
-NG_ANCHOR = 216428397  # refdata README: GRCh38 chr1 = 216,428,397 - NG position
 
 RS1_LITERATURE = [("214", "G", "A", "c.214G>A", "p.(Glu72Lys)"), ("304", "C", "T", "c.304C>T", "p.(Arg102Trp)"),
                   ("305", "G", "A", "c.305G>A", "p.(Arg102Gln)"), ("325", "G", "C", "c.325G>C", "p.(Gly109Arg)"),
@@ -59,10 +57,7 @@ USH2A_LITERATURE = [("2299", "G", "", "c.2299del", "p.(Glu767SerfsTer21)"),
                     ("11864", "G", "A", "c.11864G>A", "p.(Trp3955Ter)")]
 
 
-def _need(*paths):
-    missing = [str(p) for p in paths if not p.exists()]
-    if missing:
-        pytest.skip(f"outside reference data not present: {', '.join(missing)}")
+_need = need
 
 
 def _cli(*args: str) -> subprocess.CompletedProcess:
@@ -193,11 +188,7 @@ def test_rs1_panel_model_with_lrg_sequence_agrees_with_the_record():
 # --- USH2A: the panel structure against NM_206933.2 of the RefSeqGene record ---------------------
 @pytest.fixture(scope="module")
 def ush2a():
-    _need(NG_FASTA, NG_GFF)
-    with gzip.open(NG_FASTA, "rt") as fh:
-        ng = "".join(line.strip() for line in fh if not line.startswith(">"))
-    region = RegionSequence.from_gene_orientation("1", ng, NG_ANCHOR, "-")
-    gff = read_gff(str(NG_GFF), {"NG_009497.1": Placement("1", NG_ANCHOR, "-")}, keep=["NM_206933.2"])
+    region, gff, _ = load_ush2a()
     return region, gff
 
 

@@ -37,15 +37,10 @@ ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "tests"))
 from vcf_builder import write_csq_vcf  # noqa: E402
 
-REFDATA = ROOT.parent / "shared" / "refdata"
-LRG = REFDATA / "refseqgene" / "LRG_702.xml"
+from refseqgene_data import LRG, need  # noqa: E402  (need: also used by test_annotate_equivalence)
 CSQ_FORMAT = "Allele|Consequence|IMPACT|SYMBOL|Gene|Feature_type|Feature|BIOTYPE|EXON|INTRON|HGVSc|HGVSp"
 
 
-def need(*paths: Path) -> None:
-    missing = [str(p) for p in paths if not p.exists()]
-    if missing:
-        pytest.skip(f"outside reference data not present: {', '.join(missing)}")
 
 
 def cli(*args: str, cwd: Path = ROOT) -> subprocess.CompletedProcess:

@@ -30,6 +30,7 @@ import csv
 import gzip
 import json
 import re
+import sys
 from pathlib import Path
 
 import pytest
@@ -38,25 +39,20 @@ from irdtriage.annotate.annotate import TxCache, annotate_allele
 from irdtriage.annotate.hgvs_c import TxMap
 from irdtriage.annotate.hgvs_p import translate
 from irdtriage.annotate.lrg import read_lrg
-from irdtriage.annotate.providers import Placement, RegionSequence, read_gff, revcomp
+from irdtriage.annotate.providers import revcomp
 
 pytestmark = pytest.mark.external
 
-REFDATA = Path(__file__).resolve().parents[2].parent / "shared" / "refdata"
-RSG = REFDATA / "refseqgene"
-LRG = RSG / "LRG_702.xml"
-NG_FASTA, NG_GFF = RSG / "NG_009497.1.fasta.gz", RSG / "NG_009497.1.gff3"
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from refseqgene_data import LRG, NG_ANCHOR, NG_GFF, REFDATA, load_ush2a, need  # noqa: E402
+
 EREPO = REFDATA / "clingen_erepo" / "erepo_dev.tsv.gz"
 PHENOPACKETS = REFDATA / "phenopackets"
-NG_ANCHOR = 216428397  # refdata README: GRCh38 chr1 = 216,428,397 - NG position
 
 TRANSCRIPTS = {"USH2A": "NM_206933", "RS1": "NM_000330"}
 
 
-def _need(*paths):
-    missing = [str(p) for p in paths if not p.exists()]
-    if missing:
-        pytest.skip(f"outside reference data not present: {', '.join(missing)}")
+_need = need
 
 
 @pytest.fixture(scope="module")
@@ -73,12 +69,7 @@ def rs1_37():
 
 @pytest.fixture(scope="module")
 def ush2a():
-    _need(NG_FASTA, NG_GFF)
-    with gzip.open(NG_FASTA, "rt") as fh:
-        seq = "".join(line.strip() for line in fh if not line.startswith(">"))
-    region = RegionSequence.from_gene_orientation("1", seq, NG_ANCHOR, "-")
-    txs = read_gff(str(NG_GFF), {"NG_009497.1": Placement("1", NG_ANCHOR, "-")}, keep=["NM_206933.2"])
-    return region, txs, seq
+    return load_ush2a()
 
 
 # --- g. HGVS -> VCF-style allele (the expert-panel rows' notation) -------------------------------
