@@ -401,20 +401,13 @@ def _run_and_write(vcf: str, kwargs: dict, args, input_phenopacket_path: Optiona
 
 def _tier_genes(args) -> tuple[Optional[list[str]], list[str]]:
     """Genes to triage after --genes and --tier, and a warning naming what the tier left out."""
-    genes, warnings, _panel = _tier_panel(args)
+    genes, warnings, _panel = _tier_selection(args)
     return genes, warnings
 
 
-def _tier_panel(args):
-    """(genes, warnings, panel): as :func:`_tier_genes`, plus the panel restricted to those genes,
-    so that ``triage`` reads the panel files once."""
-    from .panel import select_genes
-
-    genes, warnings, panel = _tier_selection(args)
-    return genes, warnings, select_genes(panel, genes) if genes is not None else panel
-
-
 def _tier_selection(args):
+    """(genes, warnings, panel): as :func:`_tier_genes`, plus the panel as read (after --genes),
+    so that ``triage`` reads the panel files once."""
     from .panel import genes_at_tier, load_panel
 
     genes = parse_gene_option(args.genes) if args.genes else None
@@ -436,7 +429,10 @@ def _tier_selection(args):
 
 
 def cmd_triage(args, argv) -> int:
-    genes, tier_warnings, panel = _tier_panel(args)
+    from .panel import select_genes
+
+    genes, tier_warnings, panel = _tier_selection(args)
+    panel = select_genes(panel, genes)
     kwargs = dict(
         sample=args.sample, hpo=args.hpo, phenopacket=args.phenopacket, ped=args.ped, sex=args.sex,
         build=args.build, panel_path=args.panel, genes=genes, rules_path=args.rules,
