@@ -98,9 +98,8 @@ def vcf_header_values(ev: Optional[dict]) -> list[str]:
     return out or ['<ID=none,Description="none given: no evidence bundle, file or online source">']
 
 
-def finding_sources(f: dict, ev: Optional[dict]) -> str:
-    """Which sources gave one finding's frequency, clinical and score values (result.json finding)."""
-    evd = f.get("evidence") or {}
+def source_index(ev: Optional[dict]) -> tuple[dict[str, dict], dict[str, dict]]:
+    """(first source by kind, score sources by name): built once per output, read per finding."""
     by_kind: dict[str, dict] = {}
     scores_by_name: dict[str, dict] = {}
     for e in entries(ev):
@@ -108,6 +107,14 @@ def finding_sources(f: dict, ev: Optional[dict]) -> str:
             scores_by_name[e["name"]] = e
         else:
             by_kind.setdefault(e["kind"], e)
+    return by_kind, scores_by_name
+
+
+def finding_sources(f: dict, ev: Optional[dict], index: Optional[tuple] = None) -> str:
+    """Which sources gave one finding's frequency, clinical and score values (result.json finding);
+    ``index``: :func:`source_index` of ``ev``, when the caller describes many findings."""
+    evd = f.get("evidence") or {}
+    by_kind, scores_by_name = index if index is not None else source_index(ev)
 
     def label(e: Optional[dict], fallback: str) -> str:
         if not e:

@@ -64,9 +64,10 @@ def iter_rows(result: dict) -> Iterator[dict]:
             gene_of[fid] = g
     caution = " ".join(CAUTION.split())
     limits = input_limits(result)  # what the input could not support, repeated on every row
-    from ..evidence.describe import finding_sources
+    from ..evidence.describe import finding_sources, source_index
 
     ev_sources = result.get("evidence_sources")
+    ev_index = source_index(ev_sources)
     for f in result.get("findings") or []:
         g = gene_of.get(f.get("id")) or {}
         o = f.get("original") or {}
@@ -97,7 +98,7 @@ def iter_rows(result: dict) -> Iterator[dict]:
             "noncoding_next_step": (f.get("noncoding") or {}).get("next_step"),
             **_structural_cells(f),
             "rule_set": f.get("rule_set"),  # the combining rule set that gave the class (panels/combining.yaml)
-            "evidence_sources": finding_sources(f, ev_sources),  # frequency/clinical/score sources
+            "evidence_sources": finding_sources(f, ev_sources, ev_index),  # frequency/clinical/score sources
         }
 
 
