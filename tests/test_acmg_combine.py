@@ -13,6 +13,7 @@ import pytest
 from irdtriage.acmg.combine import (
     bayes_class, combine, odds_of_pathogenicity, point_class, points, posterior, rule_class,
 )
+from irdtriage.acmg.rulesets import load_combining
 from irdtriage.models import CriterionResult
 
 P_SUP = ["PP1", "PP2", "PP3", "PP4", "PP5"]
@@ -20,6 +21,11 @@ P_MOD = ["PM1", "PM2", "PM3", "PM4", "PM5", "PM6"]
 P_STR = ["PS1", "PS2", "PS3", "PS4"]
 B_SUP = ["BP1", "BP2", "BP3", "BP4", "BP5", "BP6", "BP7"]
 B_STR = ["BS1", "BS2", "BS3", "BS4"]
+
+
+# Richards 2015 Table 5 with the SVI 2020 PVS1 + PM2_Supporting rule, named (the default rule set is the
+# general ClinGen reading, which nets contradictory evidence)
+T5 = load_combining().get("acmg-2015-svi")
 
 
 def crit(vs=0, s=0, m=0, p=0, bs=0, bp=0, ba=0):
@@ -60,7 +66,7 @@ TABLE5 = [
 
 @pytest.mark.parametrize("counts,expected,rule", TABLE5)
 def test_table5_every_rule(counts, expected, rule):  # Richards 2015 Table 5
-    cls, fired = rule_class(crit(**counts))
+    cls, fired = rule_class(crit(**counts), T5)
     assert cls == expected
     assert fired.startswith(rule)
 
@@ -82,18 +88,18 @@ BELOW = [
 
 @pytest.mark.parametrize("counts", BELOW)
 def test_table5_boundaries_are_uncertain(counts):  # Richards 2015 Table 5
-    cls, fired = rule_class(crit(**counts))
+    cls, fired = rule_class(crit(**counts), T5)
     assert cls == "Uncertain significance"
     assert fired.startswith("Uncertain significance (i)")
 
 
 def test_strong_plus_four_moderate_is_pathogenic_not_likely():  # Table 5 P(iii)(a) ">=3 Moderate"
-    assert rule_class(crit(s=1, m=4))[0] == "Pathogenic"
+    assert rule_class(crit(s=1, m=4), T5)[0] == "Pathogenic"
 
 
 @pytest.mark.parametrize("counts", [dict(vs=1, s=1, bp=1), dict(m=3, bs=1), dict(p=1, bp=2)])
 def test_conflict_is_uncertain(counts):  # Richards 2015 Table 5, Uncertain significance (ii)
-    cls, fired = rule_class(crit(**counts))
+    cls, fired = rule_class(crit(**counts), T5)
     assert cls == "Uncertain significance"
     assert "contradictory" in fired
 
@@ -101,21 +107,21 @@ def test_conflict_is_uncertain(counts):  # Richards 2015 Table 5, Uncertain sign
 def test_downgraded_pvs1_counts_as_applied_strength():  # Richards 2015 Table 5 + strengths as applied
     c = [CriterionResult("PVS1", True, "Strong"), CriterionResult("PM2", True, "Supporting")]
     # Strong + Supporting is not a Table 5 rule (needs >=2 Supporting for LP(iii)).
-    assert rule_class(c)[0] == "Uncertain significance"
+    assert rule_class(c, T5)[0] == "Uncertain significance"
     c.append(CriterionResult("PP3", True, "Supporting"))
-    assert rule_class(c)[0] == "Likely pathogenic"
+    assert rule_class(c, T5)[0] == "Likely pathogenic"
 
 
 def test_not_met_and_not_evaluable_are_ignored():
     c = crit(s=2) + [CriterionResult("BS1", False, None), CriterionResult("BP4", None, None)]
-    assert combine(c).classification == "Pathogenic"
+    assert combine(c, T5).classification == "Pathogenic"
 
 
 def test_invalid_strength_rejected():
     with pytest.raises(ValueError):
-        combine([CriterionResult("PS3", True, "StandAlone")])
+        combine([CriterionResult("PS3", True, "StandAlone")], T5)
     with pytest.raises(ValueError):
-        combine([CriterionResult("PS3", True, None)])
+        combine([CriterionResult("PS3", True, None)], T5)
 
 
 # Tavtigian 2018, table of combined odds (OP) and posteriors at prior 0.10 for Table 5 rules.
@@ -213,14 +219,14 @@ def test_points_values():  # Tavtigian 2020: Supporting 1, Moderate 2, Strong 4,
 
 
 def test_ba1_stand_alone_everywhere():  # Richards 2015 Table 5 Benign (i); Ghosh 2018
-    r = combine(crit(ba=1, vs=1, m=1))
+    r = combine(crit(ba=1, vs=1, m=1), T5)
     assert (r.classification, r.point_class, r.bayes_class) == ("Benign",) * 3
     assert r.points == 10
     assert "BA1" in r.note
 
 
 def test_agreement_has_no_note():
-    r = combine(crit(vs=1, s=1))
+    r = combine(crit(vs=1, s=1), T5)
     assert r.classification == r.point_class == r.bayes_class == "Pathogenic"
     assert r.note == ""
     assert r.rule.startswith("Pathogenic (i)(a)")
@@ -228,7 +234,7 @@ def test_agreement_has_no_note():
 
 def test_disagreement_note_for_pvs1_plus_moderate():
     # Tavtigian 2018: LP (i) is mathematically Pathogenic (10 points, posterior 0.994).
-    r = combine(crit(vs=1, m=1))
+    r = combine(crit(vs=1, m=1), T5)
     assert r.classification == "Likely pathogenic"
     assert r.point_class == "Pathogenic" and r.points == 10
     assert r.bayes_class == "Pathogenic"
@@ -237,14 +243,14 @@ def test_disagreement_note_for_pvs1_plus_moderate():
 
 def test_conflict_points_can_net_out():
     # PVS1 + PS3 + BP4: Table 5 Uncertain (ii); points 8 + 4 - 1 = 11 -> Pathogenic.
-    r = combine(crit(vs=1, s=1, bp=1))
+    r = combine(crit(vs=1, s=1, bp=1), T5)
     assert r.classification == "Uncertain significance"
     assert r.points == 11 and r.point_class == "Pathogenic"
     assert r.note
 
 
 def test_empty_is_uncertain():
-    r = combine([])
+    r = combine([], T5)
     assert (r.classification, r.points, r.point_class, r.bayes_class) == (
         "Uncertain significance", 0, "Uncertain significance", "Uncertain significance")
     assert r.posterior == pytest.approx(0.10)
@@ -259,7 +265,7 @@ def test_empty_is_uncertain():
 # gives posterior 350**(9/8) * 0.1 / ((350**(9/8) - 1) * 0.1 + 1) = 0.988.
 def test_svi_pvs1_pm2_supporting_is_likely_pathogenic():
     c = [CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting")]
-    res = combine(c)
+    res = combine(c, T5)
     assert res.rule_class == "Likely pathogenic"
     assert "SVI 2020 amendment" in res.rule and "PM2_Supporting" in res.rule
     assert res.points == 9 and res.point_class == "Likely pathogenic"
@@ -270,23 +276,22 @@ def test_svi_pvs1_pm2_supporting_is_likely_pathogenic():
 def test_svi_amendment_is_narrow():
     # Richards 2015 Table 5 alone: PVS1 + one supporting criterion other than PM2 is no rule.
     assert rule_class([CriterionResult("PVS1", True, "VeryStrong"),
-                       CriterionResult("PP3", True, "Supporting")])[0] == "Uncertain significance"
+                       CriterionResult("PP3", True, "Supporting")], T5)[0] == "Uncertain significance"
     # PVS1 lowered to Strong + PM2_Supporting: not the amendment's case (Strong + 1 Supporting).
     assert rule_class([CriterionResult("PVS1", True, "Strong"),
-                       CriterionResult("PM2", True, "Supporting")])[0] == "Uncertain significance"
+                       CriterionResult("PM2", True, "Supporting")], T5)[0] == "Uncertain significance"
     # PM2 at Moderate with PVS1 is Table 5 LP (i) already; the amendment does not relabel it.
     assert rule_class([CriterionResult("PVS1", True, "VeryStrong"),
-                       CriterionResult("PM2", True, "Moderate")])[1].startswith("Likely pathogenic (i)")
+                       CriterionResult("PM2", True, "Moderate")], T5)[1].startswith("Likely pathogenic (i)")
     # PVS1 + PM2_Supporting + another supporting: Table 5 Pathogenic (i)(d) wins.
     assert rule_class([CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting"),
-                       CriterionResult("PP3", True, "Supporting")])[0] == "Pathogenic"
+                       CriterionResult("PP3", True, "Supporting")], T5)[0] == "Pathogenic"
     # Conflicting benign evidence still makes it Uncertain (Table 5 VUS (ii)).
     assert rule_class([CriterionResult("PVS1", True, "VeryStrong"), CriterionResult("PM2", True, "Supporting"),
-                       CriterionResult("BP4", True, "Supporting")])[0] == "Uncertain significance"
+                       CriterionResult("BP4", True, "Supporting")], T5)[0] == "Uncertain significance"
 
 
 # --- rule sets (panels/combining.yaml) --------------------------------------------------------
-from irdtriage.acmg.rulesets import load_combining  # noqa: E402
 
 SETS = load_combining().rule_sets
 
@@ -300,27 +305,27 @@ def test_very_strong_second_criterion_counts_as_strong(second):
     # Richards 2015 Table 5 Pathogenic (i)(a): 1 Very Strong and >= 1 Strong; a criterion applied at
     # Very Strong is at least Strong (PVS1 + PM3_VeryStrong + PP4_Moderate was wrongly LP before).
     c = [C("PVS1", "VeryStrong"), C(second, "VeryStrong"), C("PP4", "Moderate")]
-    cls, rule = rule_class(c)
+    cls, rule = rule_class(c, T5)
     assert cls == "Pathogenic" and rule.startswith("Pathogenic (i)(a)")
     # and with only a Very Strong non-PVS1 criterion plus a Moderate: Table 5 LP (i)
-    assert rule_class([C(second, "VeryStrong"), C("PM2", "Moderate")])[0] == "Likely pathogenic"
+    assert rule_class([C(second, "VeryStrong"), C("PM2", "Moderate")], T5)[0] == "Likely pathogenic"
 
 
 def test_two_very_strong_alone_is_pathogenic():  # Table 5 P (ii) >= 2 Strong, each Very Strong fills one
-    assert rule_class([C("PVS1", "VeryStrong"), C("PS2", "VeryStrong")])[0] == "Pathogenic"
+    assert rule_class([C("PVS1", "VeryStrong"), C("PS2", "VeryStrong")], T5)[0] == "Pathogenic"
 
 
 def test_higher_strength_fills_lower_places_only_once():
     # 1 Strong + 1 Supporting: the Strong criterion cannot fill both the Strong and a Supporting
     # place of LP (iii) (1 Strong and >= 2 Supporting).
-    assert rule_class([C("PS3", "Strong"), C("PP3", "Supporting")])[0] == "Uncertain significance"
+    assert rule_class([C("PS3", "Strong"), C("PP3", "Supporting")], T5)[0] == "Uncertain significance"
     # 2 Strong + 1 Supporting is Pathogenic (ii) in any case.
-    assert rule_class([C("PS3", "Strong"), C("PS4", "Strong"), C("PP3", "Supporting")])[0] == "Pathogenic"
+    assert rule_class([C("PS3", "Strong"), C("PS4", "Strong"), C("PP3", "Supporting")], T5)[0] == "Pathogenic"
 
 
 @pytest.mark.parametrize("code", ["BS1", "BS2", "BP4"])
 def test_stand_alone_benign_codes(code):  # benign criteria a specification grades Stand Alone act as BA1
-    r = combine([C(code, "StandAlone"), C("PM2", "Supporting")])
+    r = combine([C(code, "StandAlone"), C("PM2", "Supporting")], T5)
     assert (r.classification, r.point_class, r.bayes_class) == ("Benign",) * 3
     assert r.points == 1 and code in r.note
 

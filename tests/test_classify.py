@@ -71,10 +71,14 @@ def test_expert_written_strengths(text, want):
 
 
 def test_gene_picks_its_rule_set_and_rule_set_overrides():
-    p = run("PM2, BS1", "--gene", "RPE65")
+    p = run("PM2, BS1", "--gene", "USH2A")
     assert p.returncode == 0, p.stderr
-    assert field(p.stdout, "Rule set").startswith("clingen-lca-eord-rpe65-v1")
+    assert field(p.stdout, "Rule set").startswith("clingen-hearing-loss-v2")
     assert field(p.stdout, "Class") == "Uncertain significance"  # Table 5 VUS (ii): contradictory
+    p = run("PM2, BS1", "--gene", "RPE65")
+    assert field(p.stdout, "Rule set").startswith("clingen-lca-eord-rpe65-v1")
+    p = run("PM2, BS1", "--rule-set", "acmg-2015-svi")
+    assert field(p.stdout, "Class") == "Uncertain significance"
     p = run("PM2, BS1", "--rule-set", "clingen-svi-general")
     # netted on the point scale: 2 - 4 = -2 points, Likely benign (Tavtigian 2020 Table 3)
     assert field(p.stdout, "Class") == "Likely benign"
@@ -113,8 +117,9 @@ def test_tsv_rows(tmp_path):
     assert list(rows[0]) == ["id", "gene", "criteria_met", "class", "rule_set", "rule", "points", "posterior",
                              "caution"]
     assert [r["id"] for r in rows] == ["a", "b", "c"]
-    assert [r["class"] for r in rows] == ["Likely pathogenic", "Uncertain significance", "Uncertain significance"]
-    assert [r["rule_set"] for r in rows] == ["clingen-lca-eord-rpe65-v1", "acmg-2015-svi", "acmg-2015-svi"]
+    # BS1 alone: -4 points, Likely benign in the general rule set (one Strong benign criterion)
+    assert [r["class"] for r in rows] == ["Likely pathogenic", "Likely benign", "Uncertain significance"]
+    assert [r["rule_set"] for r in rows] == ["clingen-lca-eord-rpe65-v1", "clingen-svi-general", "clingen-svi-general"]
     assert [r["points"] for r in rows] == ["9", "-4", "0"]
     assert rows[2]["posterior"] == "0.100000"  # the prior (Tavtigian 2018)
     assert all(r["caution"] == CAUTION for r in rows)
@@ -153,12 +158,15 @@ def test_bundled_file_loads_and_hashes():
     assert comb.sha256 == hashlib.sha256((ROOT / "panels" / "combining.yaml").read_bytes()).hexdigest()
     assert comb.for_gene("RPE65").name == "clingen-lca-eord-rpe65-v1"
     assert comb.for_gene("USH2A").name == comb.for_gene("myo7a").name == "clingen-hearing-loss-v2"
-    assert comb.for_gene("RHO").name == comb.default == "acmg-2015-svi"
+    assert comb.for_gene("RHO").name == comb.default == "clingen-svi-general"
+    # the nine genes of the Hearing Loss specification (GN005 title) use its rule set
+    assert {comb.for_gene(g).name for g in ("CDH23", "COCH", "GJB2", "KCNQ4", "MYO6", "MYO7A", "SLC26A4", "TECTA",
+                                            "USH2A")} == {"clingen-hearing-loss-v2"}
     rs = comb.rule_sets
     # each rule set has its own hash over its resolved content (name, version, source, table, rules):
     # two rule sets with the same rules still differ, and editing one rule set changes only its hash
-    assert rs["clingen-lca-eord-rpe65-v1"].rules == rs["acmg-2015-svi"].rules
-    assert rs["clingen-lca-eord-rpe65-v1"].sha256 != rs["acmg-2015-svi"].sha256
+    assert rs["clingen-lca-eord-rpe65-v1"].rules == rs["clingen-svi-general"].rules
+    assert rs["clingen-lca-eord-rpe65-v1"].sha256 != rs["clingen-svi-general"].sha256
     assert len({r.sha256 for r in rs.values()}) == len(rs) and comb.sha256 not in {r.sha256 for r in rs.values()}
     text = (ROOT / "panels" / "combining.yaml").read_text()
     edited = parse_combining(text.replace("conflict: points", "conflict: uncertain", 1).encode(), None,
@@ -173,7 +181,7 @@ def test_bundled_file_loads_and_hashes():
     ("codes: {PVS1: VeryStrong, PM2: Supporting}}", "codes: {PVS9: VeryStrong}}", "unknown ACMG/AMP criterion code"),
     ("method: points", "method: votes", "method must be one of"),
     ("conflict: points", "conflict: maybe", "conflict must be one of"),
-    ("default: acmg-2015-svi", "default: nothing-here", "default must name a rule set"),
+    ("default: clingen-svi-general", "default: nothing-here", "default must name a rule set"),
     ("RPE65: clingen-lca-eord-rpe65-v1", "RPE65: clingen-lca-v9", "unknown rule set"),
     ("{class: Benign, label: \"Benign (ii)", "{class: Uncertain significance, label: \"Benign (ii)", "class must be"),
 ])
@@ -198,7 +206,7 @@ def test_demo_result_records_the_rule_sets(tmp_path):
     res = json.loads((tmp_path / "result.json").read_text(encoding="utf-8"))
     comb = res["rules"]["combining"]
     assert comb["sha256"] == hashlib.sha256((ROOT / "panels" / "combining.yaml").read_bytes()).hexdigest()
-    assert comb["default"]["name"] == "acmg-2015-svi"
+    assert comb["default"]["name"] == "clingen-svi-general"
     used = {f["rule_set"] for f in res["findings"]}
     assert used and used == {r["name"] for r in comb["rule_sets"]}
 
@@ -207,15 +215,17 @@ def test_tsv_row_names_its_rule_set(tmp_path):
     # a non-empty rule_set cell decides that row; an empty one falls back to the gene's rule set
     src = tmp_path / "rows.tsv"
     src.write_text("gene\tcriteria_met\trule_set\n"
-                   "PAH\tPM2, BS1\tclingen-svi-general\n"
-                   "RPE65\tPM2, BS1\t\n", encoding="utf-8")
+                   "PAH\tPM2, BS1\tacmg-2015-svi\n"
+                   "USH2A\tPM2, BS1\t\n", encoding="utf-8")
     p = run("--tsv", str(src))
     assert p.returncode == 0, p.stderr
     rows = list(csv.DictReader(io.StringIO(p.stdout), delimiter="\t"))
     assert list(rows[0]) == ["gene", "criteria_met", "rule_set", "class", "rule", "points", "posterior", "caution"]
-    assert [r["rule_set"] for r in rows] == ["clingen-svi-general", "clingen-lca-eord-rpe65-v1"]
-    # 2 - 4 = -2 points netted (Tavtigian 2020 Table 3: Likely benign); Table 5 VUS (ii) for RPE65
-    assert [r["class"] for r in rows] == ["Likely benign", "Uncertain significance"]
+    assert [r["rule_set"] for r in rows] == ["acmg-2015-svi", "clingen-hearing-loss-v2"]
+    # Table 5 "Uncertain significance (ii)" (contradictory) in both: the plain table named in the row, and the
+    # Hearing Loss specification for USH2A (BS1 reaches Likely benign only "provided there is no conflicting
+    # evidence"); the default general rule set would net 2 - 4 = -2 points to Likely benign
+    assert [r["class"] for r in rows] == ["Uncertain significance", "Uncertain significance"]
     bad = tmp_path / "bad.tsv"
     bad.write_text("gene\tcriteria_met\trule_set\nPAH\tPVS1\tno-such-set\n", encoding="utf-8")
     p = run("--tsv", str(bad))
@@ -230,7 +240,7 @@ def test_hearing_loss_bs1_alone_is_likely_benign():
     assert "BS1 with no conflicting evidence" in field(p.stdout, "Rule")
     p = run("BS1, PM2_Supporting", "--gene", "USH2A")  # conflicting evidence: Table 5 VUS (ii)
     assert field(p.stdout, "Class") == "Uncertain significance"
-    p = run("BS1", "--gene", "RPE65")  # Table 5: one Strong benign alone reaches no rule
+    p = run("BS1", "--rule-set", "acmg-2015-svi")  # Table 5: one Strong benign alone reaches no rule
     assert field(p.stdout, "Class") == "Uncertain significance"
     p = run("PVS1, PS2_Very Strong", "--gene", "MYO7A")  # PS2_VeryStrong graded in the HL specification v1
     assert field(p.stdout, "Class") == "Pathogenic"

@@ -4,12 +4,12 @@ README) is classified by the real ``irdtriage classify --tsv`` in a subprocess, 
 the panel met, as the panel wrote them. The expected value of each row is the panel's own
 assertion, read from the export.
 
-A row whose gene has its own rule set in panels/combining.yaml is combined with it (chosen by the
-``gene`` column); every other row names the general rule set, ``clingen-svi-general``, in a
-``rule_set`` column added to a copy of the export. No gene of this export has its own rule set today
-(the retinal and hearing-loss specifications are encoded, but their panels are not in the export;
-rule sets were added only where a specification's text states a combining rule, never fitted to
-these rows). The rows not reproduced are listed, each with its exact reason, in
+The export is handed over as it is, with its ``gene`` column: a gene with its own rule set in
+panels/combining.yaml is combined with it, every other gene with the default rule set (the general
+ClinGen reading, ``clingen-svi-general``), exactly as a curator's ``classify --tsv`` run is. No gene
+of this export has its own rule set (the retinal and hearing-loss specifications are encoded, but their
+panels are not in the export; rule sets were added only where a specification's text states a combining
+rule, never fitted to these rows). The rows not reproduced are listed, each with its exact reason, in
 tests/data/erepo_known_differences.tsv; the list must stay exact (a listed row that now agrees, or
 an unlisted row that disagrees, fails).
 """
@@ -30,7 +30,6 @@ from irdtriage.acmg.rulesets import load_combining
 ROOT = Path(__file__).resolve().parents[2]
 EREPO = ROOT.parent / "shared" / "refdata" / "clingen_erepo" / "erepo_dev.tsv.gz"
 KNOWN = ROOT / "tests" / "data" / "erepo_known_differences.tsv"
-RULE_SET = "clingen-svi-general"
 # The panel's assertion as the export writes it -> the class names of the standard (Richards 2015).
 PANEL_CLASS = {"Pathogenic": "Pathogenic", "Likely Pathogenic": "Likely pathogenic",
                "Uncertain Significance": "Uncertain significance", "Likely Benign": "Likely benign",
@@ -46,22 +45,14 @@ pytestmark = [pytest.mark.external,
 
 
 def _expected_rule_set(gene: str) -> str:
-    genes = load_combining().genes
-    return genes.get(gene.upper(), RULE_SET)
+    return load_combining().for_gene(gene).name
 
 
 @pytest.fixture(scope="module")
-def classified(tmp_path_factory):
+def classified():
     with gzip.open(EREPO, "rt", encoding="utf-8") as fh:
         src = list(csv.DictReader(fh, delimiter="\t"))
-    own = load_combining().genes
-    rows = tmp_path_factory.mktemp("erepo") / "erepo_rule_sets.tsv"
-    with open(rows, "w", encoding="utf-8", newline="") as fh:
-        w = csv.DictWriter(fh, fieldnames=list(src[0]) + ["rule_set"], delimiter="\t", lineterminator="\n")
-        w.writeheader()
-        for r in src:  # empty: the gene's own rule set, chosen by the gene column
-            w.writerow({**r, "rule_set": "" if r["gene"].upper() in own else RULE_SET})
-    proc = subprocess.run([sys.executable, "-m", "irdtriage", "classify", "--tsv", str(rows)],
+    proc = subprocess.run([sys.executable, "-m", "irdtriage", "classify", "--tsv", str(EREPO)],
                           capture_output=True, text=True, cwd=ROOT)
     assert proc.returncode == 0, proc.stderr  # 0 crashes: every row classified, no input error
     out = list(csv.DictReader(io.StringIO(proc.stdout), delimiter="\t"))
