@@ -6,7 +6,10 @@ panel met, with the strength it applied, and the class it asserted. The criteria
 ``combine`` exactly as the panel applied them and the expected class is the panel's own
 assertion, typed from the row. Rows used: every RS1 row (the one retinal gene in the export)
 and every Phenylketonuria VCEP row (a panel whose specification keeps the Richards et al. 2015
-Table 5 combining rules; from memory). Rows whose listed criteria cannot reach the panel's
+Table 5 combining rules: ClinGen Phenylketonuria Expert Panel Specifications for PAH version 2.0.0,
+read in a secondary transcription of the specification, not in the registry itself), combined with
+the rule set that is that table (``acmg-2015-svi``, named; the default rule set is the general
+ClinGen reading). Rows whose listed criteria cannot reach the panel's
 class under Table 5 are listed in ``PANEL_DEPARTS`` with the reason (checked there against the
 Tavtigian et al. 2020 point class when that is what the panel followed).
 
@@ -34,6 +37,7 @@ import pytest
 from irdtriage.acmg.combine import combine
 from irdtriage.acmg.engine import evaluate
 from irdtriage.acmg.rules import load_rules
+from irdtriage.acmg.rulesets import load_combining
 from irdtriage.models import Annotation, CriterionResult, Finding, Gene, Span, Variant
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
@@ -43,6 +47,7 @@ EREPO = REFDATA / "clingen_erepo" / "erepo_dev.tsv.gz"
 GRCH38_TABLE = REFDATA / "gene_spans" / "gencode_canonical_grch38.txt.gz"
 
 pytestmark = pytest.mark.external
+TABLE5 = load_combining().get("acmg-2015-svi")
 
 # --------------------------------------------------------------------------------------------
 # Part 1: ClinGen expert-panel rows
@@ -115,7 +120,7 @@ def _param(row):
 @pytest.mark.parametrize("row", [_param(r) for r in EREPO_ROWS])
 def test_expert_panel_criteria_give_the_panel_class(row):
     want = PANEL_CLASS[row["assertion"]]  # the panel's assertion (ClinGen Evidence Repository)
-    cls = combine(_criteria(row))
+    cls = combine(_criteria(row), TABLE5)
     depart = PANEL_DEPARTS.get(_depart_key(row))
     if depart is not None:
         table5, point_class, _why = depart
@@ -143,7 +148,7 @@ def test_pvs1_with_a_second_very_strong_criterion_is_pathogenic():
     rows = [r for r in EREPO_ROWS if _depart_key(r) == "PAH PP4_Moderate, PVS1, PM3_Very Strong"]
     assert rows and all(r["assertion"] == "Pathogenic" for r in rows)
     for r in rows:
-        cls = combine(_criteria(r))
+        cls = combine(_criteria(r), TABLE5)
         assert (cls.classification, cls.rule[:18]) == ("Pathogenic", "Pathogenic (i)(a):"), cls
 
 
