@@ -72,10 +72,11 @@ def test_disputed_class_names_the_method_that_gave_it(monkeypatch):
     # points 1 - 2 = -1 -> Likely benign (Table 3: -1..-6); Tavtigian et al. 2018 posterior
     # 350**(1/8 - 2/8) = 0.481, at prior 0.10 -> 0.0507 -> Likely benign (0.001-0.10).
     from irdtriage.acmg.combine import combine
+    from irdtriage.acmg.rulesets import load_combining
     from irdtriage.models import CriterionResult
 
     c = combine([CriterionResult("PM2", True, "Supporting", "absent"),
-                 CriterionResult("BP4", True, "Moderate", "benign interval")])
+                 CriterionResult("BP4", True, "Moderate", "benign interval")], load_combining().get("acmg-2015-svi"))
     r = json.loads(FIXTURE.read_text())
     f = r["findings"][0]
     f.update(classification=c.classification, rule_class=c.rule_class, points=c.points, point_class=c.point_class,

@@ -22,6 +22,7 @@ from __future__ import annotations
 import pytest
 
 from irdtriage.acmg.combine import bayes_class, combine, point_class, posterior, rule_class
+from irdtriage.acmg.rulesets import load_combining
 from irdtriage.models import CriterionResult
 
 P, LP, VUS, LB, B = "Pathogenic", "Likely pathogenic", "Uncertain significance", "Likely benign", "Benign"
@@ -69,7 +70,7 @@ TABLE5 = [
 
 @pytest.mark.parametrize("counts,expected", TABLE5, ids=[str(c) for c, _ in TABLE5])
 def test_richards_table5_lines(counts, expected):
-    cls, rule = rule_class(crit(**counts))
+    cls, rule = rule_class(crit(**counts), load_combining().get("acmg-2015-svi"))  # the table, named
     assert cls == expected, rule
 
 
