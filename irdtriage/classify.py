@@ -26,16 +26,30 @@ DEFAULT_STRENGTH = {"PVS": "VeryStrong", "PS": "Strong", "PM": "Moderate", "PP":
 STRENGTH_WORDS = {"supporting": "Supporting", "moderate": "Moderate", "strong": "Strong",
                   "verystrong": "VeryStrong", "standalone": "StandAlone"}
 _ITEM = re.compile(r"^(?P<code>[A-Za-z]{2,3}[0-9])(?:[\s_-]+(?P<strength>.+))?$")
+# A new criterion starts wherever a code follows white space ("PS1 PM2_Supporting" is two criteria,
+# "PS2_Very Strong" one).
+_CODE_AFTER_SPACE = re.compile(r"\s+(?=(?:PVS|PS|PM|PP|BA|BS|BP)[0-9](?![0-9]))", re.IGNORECASE)
 
 TSV_COLUMNS = ("class", "rule_set", "rule", "points", "posterior")
 
 
+def _strength_word(written: str) -> str:
+    """The strength name a curator wrote, letters only and lower case; an unambiguous abbreviation of
+    at least three letters (``Sup``, ``Mod``, ``Str``, ``VeryStr``, ``Stand``) reads as the whole word."""
+    word = re.sub(r"[^a-z]", "", written.lower())
+    if word in STRENGTH_WORDS or len(word) < 3:
+        return word
+    hits = [w for w in STRENGTH_WORDS if w.startswith(word)]
+    return hits[0] if len(hits) == 1 else word
+
+
 def parse_criteria(text: str, where: str = "criteria", line: Optional[int] = None) -> list[CriterionResult]:
-    """Met criteria from text such as ``"PVS1, PM2_Supporting, PS2_Very Strong"`` (comma- or
-    semicolon-separated).  An unknown code or strength, or a code listed twice, raises InputError."""
+    """Met criteria from text such as ``"PVS1, PM2_Supporting, PS2_Very Strong"`` (separated by
+    commas, semicolons or white space before a code).  An unknown code or strength, or a code listed twice, raises InputError."""
     out: list[CriterionResult] = []
     seen: set[str] = set()
-    for item in (x.strip() for x in re.split(r"[,;]", text or "")):
+    items = (y.strip() for x in re.split(r"[,;]", text or "") for y in _CODE_AFTER_SPACE.split(x.strip()))
+    for item in items:
         if not item:
             continue
         m = _ITEM.match(item)
@@ -46,7 +60,7 @@ def parse_criteria(text: str, where: str = "criteria", line: Optional[int] = Non
         if code not in ALL_CODES:
             raise InputError(f"unknown ACMG/AMP criterion code {code!r} in {item!r}", where, line)
         if m.group("strength"):
-            word = re.sub(r"[^a-z]", "", m.group("strength").lower())
+            word = _strength_word(m.group("strength"))
             if word not in STRENGTH_WORDS:
                 raise InputError(f"unknown strength {m.group('strength')!r} in {item!r} (use Supporting, Moderate, "
                                  "Strong, Very Strong or Stand Alone)", where, line)

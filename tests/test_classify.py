@@ -149,6 +149,33 @@ def test_parse_forms():
     assert parse_criteria("  ") == []
 
 
+def test_parse_white_space_lists_and_abbreviated_strengths():
+    # white space before a code starts a new criterion; "Very Strong" stays one strength
+    got = [(c.code, c.strength) for c in parse_criteria("PS2_Very Strong PM2_Supporting  BP4")]
+    assert got == [("PS2", "VeryStrong"), ("PM2", "Supporting"), ("BP4", "Supporting")]
+    # unambiguous abbreviations of three letters or more (common practice in curation notes)
+    got = [(c.code, c.strength) for c in parse_criteria("PM2_Sup, PP3_Mod, PVS1_Str, PS3_VeryStr, BS1_Stand")]
+    assert got == [("PM2", "Supporting"), ("PP3", "Moderate"), ("PVS1", "Strong"), ("PS3", "VeryStrong"),
+                   ("BS1", "StandAlone")]
+    for bad, msg in (("PM2_St", "unknown strength 'St'"), ("PM2_S", "unknown strength 'S'"),
+                     ("PM2_Supp PM2", "listed twice"), ("PS1 XX9", "unknown strength 'XX9'")):
+        with pytest.raises(InputError, match=msg):
+            parse_criteria(bad)
+
+
+def test_general_rule_set_very_strong_and_supporting():
+    # 1 Very Strong + 1 Supporting: Likely pathogenic in the general reading (several ClinGen
+    # specifications' combining sections, secondary transcriptions; 9 points, Tavtigian 2020 Table 3);
+    # the plain 2015 table keeps PS2_Very Strong + PM2_Supporting uncertain (no Table 5 line fits)
+    p = run("PS2_Very Strong, PP4")
+    assert field(p.stdout, "Class") == "Likely pathogenic"
+    assert field(p.stdout, "Rule") == "Likely pathogenic (VCEP amendment): 1 Very Strong and 1 Supporting"
+    p = run("PS2_Very Strong, PP4", "--rule-set", "acmg-2015-svi")
+    assert field(p.stdout, "Class") == "Uncertain significance"
+    p = run("PS2_Very Strong, PP4", "--gene", "USH2A")  # not stated in the Hearing Loss text read
+    assert field(p.stdout, "Class") == "Uncertain significance"
+
+
 # --- combining.yaml validation ---------------------------------------------------------------
 GOOD = (ROOT / "panels" / "combining.yaml").read_text(encoding="utf-8")
 
