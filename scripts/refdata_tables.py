@@ -348,7 +348,7 @@ def _utr_rows(exons: list[list[int]], lo: int, hi: int, utr_rows, mane_end: int)
 
 
 def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any]],
-               mane_span: tuple[int, int]) -> tuple[Optional[dict], str]:
+               mane_span: tuple[int, int], published_length: Optional[int] = None) -> tuple[Optional[dict], str]:
     """CDS of a transcript (``exons`` 1-based inclusive, ascending) from pooled GENCODE rows.
 
     Every start codon x stop codon pair lying in the exons is tried; a pair is a candidate when
@@ -360,7 +360,10 @@ def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any
     when 3' UTR rows run from the base after the stop codon to the MANE 3' end (or the stop
     codon ends there).  When several candidates share the best score, a second pass counts a UTR
     spread over several exons when each of its exon parts is a UTR row; a single candidate reaching
-    both MANE ends that way is taken (recorded as ``tie_break``), otherwise the tie is reported.  The single best-scoring candidate is taken; a tie is reported, not broken.
+    both MANE ends that way is taken (recorded as ``tie_break``).  A tie that remains is broken only
+    by ``published_length`` (the published length in residues of the MANE Select protein, from a
+    curated file): when exactly one tied candidate has that protein length it is taken
+    (``length_tie_break``); otherwise the tie is reported, not broken.
     Returns ({cds_start, cds_end, cds_length, protein_length, mane_utr_support, candidates}, "")
     or (None, reason)."""
     if not rows or not rows.get("cds"):
@@ -420,15 +423,28 @@ def derive_cds(exons: list[list[int]], strand: str, rows: Optional[dict[str, Any
             tie_break = (f"{len(top)} candidates tied on single-row UTR ties; only this one reaches both MANE Select "
                          f"ends through UTR rows spread over several exons")
             top = top2
+    length_tie_break = ""
+    if len(top) > 1 and published_length is not None:
+        same = [o for o in top if o["protein_length"] == published_length]
+        if len(same) == 1:
+            length_tie_break = (f"{len(top)} candidates tied on UTR ties to the MANE Select ends (protein lengths "
+                                f"{', '.join(str(o['protein_length']) for o in top)}); only this one has the "
+                                f"published length of the MANE Select protein ({published_length})")
+            top = same
     if len(top) > 1:
         lens = ", ".join(str(o["protein_length"]) for o in top)
+        pub = ("" if published_length is None else
+               f"; the published length {published_length} matches "
+               f"{sum(o['protein_length'] == published_length for o in top) or 'none'} of them")
         return None, (f"{len(top)} start/stop codon pairs fit this transcript's exons equally well (protein lengths "
-                      f"{lens}; ties to the MANE Select ends: {best} of 2, also with UTRs over several exons): "
+                      f"{lens}; ties to the MANE Select ends: {best} of 2, also with UTRs over several exons{pub}): "
                       f"ambiguous")
     out = {k: v for k, v in top[0].items() if k not in ("score", "score2", "split_utr_support")}
     out["candidates"] = len(ok)
     if tie_break:
         out["tie_break"] = tie_break
+    if length_tie_break:
+        out["length_tie_break"] = length_tie_break
     return out, ""
 
 

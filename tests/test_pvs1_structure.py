@@ -152,3 +152,76 @@ def test_grch37_structure_same_call():
     assert g37 is not None and g37.protein_length == g38.protein_length == 1286
     off = 21312500 - g38.cds_start  # plus strand, same exon lengths on both builds
     assert hgvs_c_position(g37, g37.cds_start + off) == "1145"
+
+
+# --- Genes structured from the GENCODE transcript with the MANE Select span ------------------
+# MYO7A (MANE Select NM_000260.4; its CDS chosen among two tied candidates by the published length
+# of NP_000251.3, panels/curation/mane_protein_lengths.yaml) and NR2E3 (NM_014249.4; not in the
+# GRCh38 canonical table).  Published null variants:
+# * MYO7A c.6070C>T p.(Arg2024Ter) and c.5168+1G>A, compound heterozygous in a Usher type 1 family
+#   (Cheng L et al., Oncotarget 2018;9:2295-2303, PMID 29416772; NM_000260 numbering);
+# * NR2E3 c.119-2A>C, the intron 1 acceptor variant of enhanced S-cone syndrome (Haider NB et al.,
+#   Nat Genet 2000;24:127-131, as IVS1-2A>C, from memory; written c.[119-2A>C] in a later case report
+#   on eScholarship, "Enhanced S Cone Syndrome", Small K et al.).
+# The published intronic positions c.5168+1 and c.119-2 are facts about the exon boundaries and the
+# CDS start: the structure must put an exon end exactly there.  Genomic positions come from the
+# structure (the sources give c. only); the expected strengths follow Abou Tayoun et al. 2018.
+
+def _tx(symbol):
+    from irdtriage.transcripts import default_model
+    tx = default_model().get(symbol, "GRCh38")
+    assert tx is not None, f"{symbol} has no GRCh38 structure"
+    return tx
+
+
+def _splice_pos(tx, name):
+    """The one genomic position the structure names ``name`` (c.N+k / c.N-k) at a canonical site."""
+    from irdtriage.transcripts import hgvs_c_position
+    hits = []
+    order = tx.ordered()
+    for a, b in zip(order, order[1:]):
+        donor, acceptor = (a[1], b[0]) if tx.strand == "+" else (a[0], b[1])
+        step = 1 if tx.strand == "+" else -1
+        hits += [p for p in (donor + step, donor + 2 * step, acceptor - step, acceptor - 2 * step)
+                 if hgvs_c_position(tx, p) == name]
+    return hits
+
+
+def _pvs1_on(tx, transcript, csq, pos, c, p=""):
+    gene = _gene(tx.symbol, tx.chrom, tx.strand, tx.exons[0][0] - 5000, tx.exons[-1][1] + 5000)
+    ann = Annotation(tx.symbol, transcript, (csq,), c, p, is_mane=True)
+    return evaluate_pvs1(ann, gene, RULES, Variant("chr" + tx.chrom, pos, "C", "T"), "GRCh38")
+
+
+def test_myo7a_published_nonsense_from_structure_alone():
+    from irdtriage.transcripts import c_number
+    tx = _tx("MYO7A")
+    assert tx.protein_length == 2215 and tx.exon_count == 49  # NP_000251.3: 2215 aa (GenAtlas MYO7A)
+    pos = next(p for s, e in tx.exons for p in range(s, e + 1) if c_number(tx, p) == 6070)
+    r = _pvs1_on(tx, "NM_000260.4", "stop_gained", pos, "c.6070C>T", "p.(Arg2024Ter)")
+    # residue 2024 of 2215, far from the last exon-exon junction -> NMD -> VeryStrong (MANE Select)
+    assert (r.met, r.strength) == (True, "VeryStrong"), r.reason
+    assert r.evidence["nmd_predicted"] is True and r.evidence["hgvs_c_from_structure"] == "c.6070"
+    assert "from panel structure: exon 45 of 49" in r.reason and "NMD predicted" in r.reason
+
+
+def test_myo7a_published_donor_matches_an_exon_end():
+    tx = _tx("MYO7A")
+    hits = _splice_pos(tx, "5168+1")
+    assert len(hits) == 1  # the published c.5168+1 is a donor +1 on the structure: c.5168 ends an exon
+    r = _pvs1_on(tx, "NM_000260.4", "splice_donor_variant", hits[0], "c.5168+1G>A")
+    # the skipped exon holds 125 coding nt (not a multiple of 3): out of frame, far 5' -> NMD -> VeryStrong
+    assert (r.met, r.strength) == (True, "VeryStrong"), r.reason
+    assert r.evidence["splice_site"] == "donor +1" and r.evidence["skipped_exon_coding_nt"] == 125
+    assert "exon 37 of 49 skipped" in r.reason and "NMD predicted" in r.reason
+
+
+def test_nr2e3_published_acceptor_matches_exon_2():
+    tx = _tx("NR2E3")
+    assert tx.exon_count == 8 and tx.protein_length == 410
+    hits = _splice_pos(tx, "119-2")
+    assert len(hits) == 1  # c.119 is the first base of exon 2, so 118 coding nt lie in exon 1
+    r = _pvs1_on(tx, "NM_014249.4", "splice_acceptor_variant", hits[0], "c.119-2A>C")
+    assert (r.met, r.strength) == (True, "VeryStrong"), r.reason
+    assert r.evidence["splice_site"] == "acceptor -2" and r.evidence["skipped_exon"] == 2
+    assert "exon 2 of 8 skipped" in r.reason and "NMD predicted" in r.reason

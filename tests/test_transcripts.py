@@ -226,3 +226,70 @@ def test_stop_codon_nt_is_validated(tmp_path):
     with pytest.raises(InputError) as e:
         load_transcripts(bad)
     assert "MT-ND4" in str(e.value) and "cds_length" in str(e.value)
+
+
+# --- A region whose orientation differs between the builds (per-build strand) ----------------
+# RBP3 and PEX11B lie in such regions: the GENCODE-derived GRCh37 table has RBP3 on the minus strand
+# where MANE Select (GRCh38) has it on the plus strand, and PEX11B the reverse.  A gene's structure on
+# each build is read 5' to 3' on that build's own strand.  Expected c. numbers follow HGVS (c.1 is
+# the A of the start codon, counted in transcript orientation; den Dunnen et al., Hum Mutat
+# 2016;37:564-569); the positions are hand-computed from the synthetic exons below.
+FLIPPED = """name: t
+version: '1'
+transcripts:
+- symbol: GENEX
+  strand: +
+  mane_boundaries_match: true
+  protein_length: 33
+  cds_length: 102
+  grch38:
+    chrom: '10'
+    cds_start: 150
+    cds_end: 350
+    exons:
+    - [100, 200]
+    - [300, 400]
+  grch37:
+    chrom: '10'
+    strand: '-'
+    cds_start: 1050
+    cds_end: 1250
+    exons:
+    - [1000, 1100]
+    - [1200, 1300]
+"""
+
+
+def test_per_build_strand(tmp_path):
+    from irdtriage.transcripts import c_number, hgvs_c_position
+    p = tmp_path / "t.yaml"
+    p.write_text(FLIPPED)
+    m = load_transcripts(p)
+    g38, g37 = m.get("GENEX", "GRCh38"), m.get("GENEX", "GRCh37")
+    assert (g38.strand, g37.strand) == ("+", "-")
+    # GRCh38 (+): c.1 = 150, last exon-1 coding base c.51 = 200, c.52 = 300, stop ends at c.102 = 350
+    assert (c_number(g38, 150), c_number(g38, 200), c_number(g38, 300), c_number(g38, 350)) == (1, 51, 52, 102)
+    # GRCh37 (-): exon 1 is [1200, 1300]; c.1 = 1250, c.51 = 1200, c.52 = 1100, c.102 = 1050
+    assert locate_in(g37, 1300).exon_number == 1 and locate_in(g37, 1000).exon_number == 2
+    assert [c_number(g37, p) for p in (1250, 1200, 1100, 1050)] == [1, 51, 52, 102]
+    assert hgvs_c_position(g37, 1199) == "51+1" and hgvs_c_position(g37, 1101) == "52-1"
+    assert hgvs_c_position(g37, 1260) == "-10" and hgvs_c_position(g37, 1040) == "*10"
+    # the same exon lengths in transcript order on both builds
+    assert [e - s for s, e in g38.ordered()] == [e - s for s, e in g37.ordered()]
+
+
+@pytest.mark.parametrize("old,new,problem,line", [
+    ("    strand: '-'\n", "    strand: x\n", "grch37 strand must be + or -", 18),
+    ("  grch38:\n    chrom: '10'\n", "  grch38:\n    chrom: '10'\n    strand: '-'\n", "grch38 strand must be the gene's strand", 11),
+    ("  cds_length: 102\n", "  cds_length: 102\n  protein_length_check: {published_length_aa: 34, source: s, "
+                            "from_memory: false}\n", "protein_length_check", 9),
+    ("  cds_length: 102\n", "  cds_length: 102\n  protein_length_check: {published_length_aa: 33, source: s}\n",
+     "from_memory", 9),
+])
+def test_per_build_strand_and_length_check_validated(tmp_path, old, new, problem, line):
+    p = tmp_path / "t.yaml"
+    assert old in FLIPPED
+    p.write_text(FLIPPED.replace(old, new))
+    with pytest.raises(InputError) as e:
+        load_transcripts(p)
+    assert problem in e.value.problem and e.value.line == line, (e.value.problem, e.value.line)

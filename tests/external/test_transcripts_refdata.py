@@ -98,7 +98,9 @@ def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_table
     assert s.main(["--mane", str(gene_tables.mane), "--grch38", str(gene_tables.grch38),
                    "--grch37", str(gene_tables.grch37), "--cds-tables", str(_cds_tables()),
                    "--panel", str(ROOT / "panels" / "genes.yaml"), "--seed", str(ROOT / "panels" / "curation" / "seed.yaml"),
-                   "--phenopackets", str(pp), "--clingen", str(cg), "--out", str(out)]) == 0
+                   "--phenopackets", str(pp), "--clingen", str(cg),
+                   "--protein-lengths", str(ROOT / "panels" / "curation" / "mane_protein_lengths.yaml"),
+                   "--out", str(out)]) == 0
     fresh, packaged = yaml.safe_load(out.read_text()), yaml.safe_load((ROOT / "panels" / "transcripts.yaml").read_text())
     assert fresh["transcripts"] == packaged["transcripts"] and fresh["skipped"] == packaged["skipped"]
     assert fresh["sources"] == packaged["sources"]
@@ -119,7 +121,8 @@ def test_packaged_file_regenerates_and_matches_mane(tmp_path, tables, gene_table
         assert m["start"] <= tx.cds_start <= tx.cds_end <= m["end"] and t["cds_length"] % 3 == 0
         if t["grch37"]:
             g37 = model.get(t["symbol"], "GRCh37")
-            assert [e - b for b, e in g37.exons] == [e - b for b, e in tx.exons]
+            # transcript order on each build's own strand (a region may be oriented differently)
+            assert [e - b for b, e in g37.ordered()] == [e - b for b, e in tx.ordered()]
             assert g37.protein_length == tx.protein_length
 
 
@@ -243,3 +246,33 @@ def test_rpgr_orf15_terminal_exon_reaches_the_mane_end(tables):
     assert tx.exons[0][0] <= tx.cds_start <= tx.exons[0][1]
     g37 = load_transcripts().get("RPGR", "GRCh37")
     assert [e - b for b, e in g37.exons] == [e - b for b, e in tx.exons] and g37.protein_length == 1152
+
+
+def test_curated_protein_lengths_name_the_mane_select_proteins(tables):
+    """panels/curation/mane_protein_lengths.yaml gives, per gene, the MANE Select protein of the MANE
+    v1.5 summary (the reader stops otherwise); each listed length is the packaged structure's."""
+    s, mane, _ = tables
+    lengths = s.read_protein_lengths(ROOT / "panels" / "curation" / "mane_protein_lengths.yaml", mane)
+    assert {"MYO7A", "TEAD1", "CTNNB1", "VCAN", "PAX6"} <= {k for k, v in lengths.items() if v["length_aa"]}
+    model = load_transcripts()
+    for sym, e in lengths.items():
+        assert mane[sym]["refseq_protein"] == e["mane_protein"]
+        if e["length_aa"] is not None:
+            assert model.get(sym, "GRCh38").protein_length == e["length_aa"]
+
+
+def test_genes_missing_from_the_grch38_table_end_at_mane_select(tables):
+    """The nine panel genes absent from the GRCh38 canonical table: eight take the exons of the GENCODE
+    transcript with the MANE Select span (so their ends are MANE's, on MANE's chromosome and strand);
+    IKBKG, with two such exon sets, stays skipped."""
+    s, mane, t38 = tables
+    doc = yaml.safe_load((ROOT / "panels" / "transcripts.yaml").read_text())
+    entries = {t["symbol"]: t for t in doc["transcripts"]}
+    for sym in ("OPN1LW", "RBP3", "KIZ", "USH1G", "CEP250", "ALMS1", "NR2E3", "PEX11B", "IKBKG"):
+        assert sym not in t38
+        if sym == "IKBKG":
+            assert sym not in entries
+            continue
+        tx, m = load_transcripts().get(sym, "GRCh38"), mane[sym]
+        assert (tx.chrom, tx.strand, tx.exons[0][0], tx.exons[-1][1]) == (m["chrom"], m["strand"], m["start"], m["end"])
+        assert m["start"] <= tx.cds_start <= tx.cds_end <= m["end"]
