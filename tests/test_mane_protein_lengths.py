@@ -92,10 +92,20 @@ def test_new_grch37_structures_have_the_grch38_exon_lengths():
         assert MODEL.get(sym, "GRCh37") is not None
 
 
-def test_rbp3_and_pex11b_grch37_refused_with_the_exon_difference():
-    # the GRCh37 table transcripts lie on the other strand and differ in their first exon (5' UTR)
-    assert ENTRIES["RBP3"]["grch37"] is None and ENTRIES["PEX11B"]["grch37"] is None
-    assert "strand -), on the other strand than GRCh38 (+)" in ENTRIES["RBP3"]["grch37_note"]
-    assert "exon 1 3168 vs 3176 nt" in ENTRIES["RBP3"]["grch37_note"]
-    assert "strand +), on the other strand than GRCh38 (-)" in ENTRIES["PEX11B"]["grch37_note"]
-    assert "exon 1 205 vs 85 nt" in ENTRIES["PEX11B"]["grch37_note"]
+def test_rbp3_and_pex11b_grch37_by_splice_boundary_anchoring():
+    # The GRCh37 table transcripts (GENCODE-derived canonical table of spliceai 1.3.1, GRCh37) lie on
+    # the other strand (regions inverted between the builds) and differ in their 5' exon, so the
+    # GRCh37 structure is anchored on their splice boundaries (GRCh37 = c - GRCh38).  Table exons
+    # (1-based): RBP3 (-) 48381487-48382260, 48383844-48383986, 48385847-48386037, 48387824-48390991;
+    # PEX11B (+) 145516252-145516456, 145517273-145517388, 145518071-145518272, 145522514-145523730.
+    rbp3, pex = MODEL.get("RBP3", "GRCh37"), MODEL.get("PEX11B", "GRCh37")
+    assert rbp3.strand == "-" and MODEL.get("RBP3", "GRCh38").strand == "+"
+    assert rbp3.exons[1:3] == ((48383844, 48383986), (48385847, 48386037))   # internal exons: table's
+    assert rbp3.exons[0][1] == 48382260 and rbp3.exons[3][0] == 48387824     # splice sites of 1 and 4
+    assert pex.strand == "+" and MODEL.get("PEX11B", "GRCh38").strand == "-"
+    assert pex.exons[1:3] == ((145517273, 145517388), (145518071, 145518272))
+    assert pex.exons[0][1] == 145516456 and pex.exons[3][0] == 145522514
+    for sym in ("RBP3", "PEX11B"):
+        note = ENTRIES[sym]["grch37_note"]
+        assert note.startswith("GRCh37 exons by splice-boundary anchoring") and "sum c" in note
+        assert "all 6 internal splice boundaries" in note and "not splice sites" in note

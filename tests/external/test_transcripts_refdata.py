@@ -276,3 +276,77 @@ def test_genes_missing_from_the_grch38_table_end_at_mane_select(tables):
         tx, m = load_transcripts().get(sym, "GRCh38"), mane[sym]
         assert (tx.chrom, tx.strand, tx.exons[0][0], tx.exons[-1][1]) == (m["chrom"], m["strand"], m["start"], m["end"])
         assert m["start"] <= tx.cds_start <= tx.cds_end <= m["end"]
+
+
+# --- GRCh37 by splice-boundary anchoring (scripts/grch37_anchoring.py) ------------------------
+# * GENCODE-derived canonical GRCh37 table (spliceai 1.3.1): where its transcript has the GRCh38
+#   structure's exon lengths it is the packaged GRCh37 structure, so anchoring on it must give
+#   exactly that structure; where the structure was anchored, every GRCh37 splice site must be a
+#   splice site of that table transcript (checked here without the anchoring code).
+# * ClinGen Evidence Repository export (erepo_dev.tsv.gz): the RS1 rows give NC_000023.10 (GRCh37)
+#   g. positions with their NM_000330.4 c. positions (intronic offsets from the boundaries of
+#   c.184, c.185 and c.326); the anchored RS1 structure must give the same c. positions.
+# No stored source gave a GRCh37 position for a variant of the four genes anchored in the packaged
+# file (RBP3, EYS, USH1G, PEX11B).
+
+def _packaged():
+    return yaml.safe_load((ROOT / "panels" / "transcripts.yaml").read_text())
+
+
+def _anchor_on_table(s, t37, t):
+    o = t37[t.get("table_name", t["symbol"])]
+    return s.anchor(t["grch38"]["exons"], t["strand"], t["grch38"], s.one_based(o["exons"]), o["strand"],
+                    o["chrom"], t["cds_length"])
+
+
+def test_anchoring_reproduces_every_grch37_table_structure(gene_tables):
+    s = _script()
+    t37 = s.read_table(gene_tables.grch37)
+    same = 0
+    for t in _packaged()["transcripts"]:
+        note = t.get("grch37_note") or ""
+        if (not t["grch37"] or "reference_record" in t or len(t["grch38"]["exons"]) == 1
+                or note.startswith(("GRCh37 exons: the GRCh38 structure shifted", "GRCh37 exons by splice-boundary"))):
+            continue  # no table structure to compare with (shifted model, anchored, single exon)
+        r, why = _anchor_on_table(s, t37, t)
+        assert why == "" and r["block"] == t["grch37"], (t["symbol"], why)
+        same += 1
+    assert same >= 290  # 295 genes in the packaged file at the time of writing
+
+
+def test_anchored_rs1_gives_the_clingen_grch37_c_positions(gene_tables):
+    cg = gene_tables.mane.parents[1] / "clingen_erepo" / "erepo_dev.tsv.gz"
+    if not cg.is_file():
+        pytest.skip("../shared/refdata clingen_erepo not present (outside reference data)")
+    s = _script()
+    t = next(x for x in _packaged()["transcripts"] if x["symbol"] == "RS1")
+    r, why = _anchor_on_table(s, s.read_table(gene_tables.grch37), t)
+    assert why == ""
+    rows = [v for v in s.read_clingen_variants(cg, {"RS1"}) if v["build"] == "GRCh37"]
+    assert len(rows) == 8
+    ok, bad = s.outside_checks(dict(t, grch37=r["block"]), rows)
+    assert bad == [] and ok == {"ClinGen erepo": 8}
+
+
+def test_packaged_anchored_grch37_sits_on_the_table_splice_sites(gene_tables):
+    s = _script()
+    t37 = s.read_table(gene_tables.grch37)
+    model = load_transcripts()
+    doc = _packaged()["transcripts"]
+    anchored = {t["symbol"]: t for t in doc if (t.get("grch37_note") or "").startswith("GRCh37 exons by splice-boundary")}
+    assert set(anchored) == {"RBP3", "EYS", "USH1G", "PEX11B"}
+    for sym, t in anchored.items():
+        o = t37[sym]
+        tab = s.one_based(o["exons"])
+        tab = tab if o["strand"] == "+" else tab[::-1]  # transcript order on the GRCh37 strand
+        five = (lambda e: e[0]) if o["strand"] == "+" else (lambda e: e[1])
+        three = (lambda e: e[1]) if o["strand"] == "+" else (lambda e: e[0])
+        g38, g37 = model.get(sym, "GRCh38"), model.get(sym, "GRCh37")
+        assert g37.strand == o["strand"] and g37.chrom == o["chrom"]
+        ex = g37.ordered()
+        assert all(five(e) in {five(x) for x in tab[1:]} for e in ex[1:]), sym
+        assert all(three(e) in {three(x) for x in tab[:-1]} for e in ex[:-1]), sym
+        assert [b - a for a, b in ex] == [b - a for a, b in g38.ordered()] and g37.protein_length == g38.protein_length
+    refused = {t["symbol"] for t in doc if t["grch37"] is None and "splice-boundary anchoring on it refused" in
+               (t.get("grch37_note") or "")}
+    assert refused == {"OPN1LW", "KIZ", "MYO7A", "CEP250", "ALMS1", "NR2E3"}
