@@ -30,7 +30,7 @@ _ITEM = re.compile(r"^(?P<code>[A-Za-z]{2,3}[0-9])(?:[\s_-]+(?P<strength>.+))?$"
 # "PS2_Very Strong" one).
 _CODE_AFTER_SPACE = re.compile(r"\s+(?=(?:PVS|PS|PM|PP|BA|BS|BP)[0-9](?![0-9]))", re.IGNORECASE)
 
-TSV_COLUMNS = ("class", "rule_set", "rule", "points", "posterior")
+TSV_COLUMNS = ("class", "rule_set", "rule", "points", "posterior", "rule_set_sha256")
 
 
 def _strength_word(written: str) -> str:
@@ -151,8 +151,8 @@ def render_text(res: dict[str, Any]) -> str:
 def classify_tsv(src: TextIO, path: str, combining: Combining, gene: Optional[str] = None,
                  rule_set: Optional[str] = None) -> str:
     """Rows of a tab-separated file with a ``criteria_met`` column (and ``gene`` when present),
-    returned as TSV text with class, rule_set, rule, points and posterior added, and the caution as
-    the last column.  The rule set of a row: a non-empty ``rule_set`` cell of that row, else
+    returned as TSV text with class, rule_set, rule, points, posterior and the rule set's SHA-256
+    added, and the caution as the last column.  The rule set of a row: a non-empty ``rule_set`` cell of that row, else
     ``rule_set`` (the --rule-set option), else the row's gene's rule set, else the default."""
     reader = csv.reader(src, delimiter="\t")
     try:
@@ -188,7 +188,7 @@ def classify_tsv(src: TextIO, path: str, combining: Combining, gene: Optional[st
                 rs = fixed or combining.for_gene(row[gi] if gi is not None and row[gi].strip() else gene)
             res = classify(parse_criteria(row[ci], path, line), rs)
             values = {"class": res["class"], "rule_set": rs.name, "rule": res["rule"], "points": str(res["points"]),
-                      "posterior": f"{res['posterior']:.6f}"}
+                      "posterior": f"{res['posterior']:.6f}", "rule_set_sha256": rs.sha256}
             row = [values.get(h, v) if h in TSV_COLUMNS else v for h, v in zip(header, row)]
             w.writerow(row + [values[c] for c in added] + [CAUTION])
     except csv.Error as e:

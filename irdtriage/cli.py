@@ -242,10 +242,12 @@ def build_parser() -> argparse.ArgumentParser:
     c = sub.add_parser("classify", help="class, rule, points and posterior for criteria as curators write them",
                        description="Combine ACMG/AMP criteria (e.g. \"PVS1, PM2_Supporting, PM3_Strong\") into a "
                                    "class with the rule set of panels/combining.yaml.", epilog=CAUTION)
-    c.add_argument("criteria", nargs="?", help="met criteria, comma-separated (PM2_Supporting, BS1_Stand Alone, PVS1 ...)")
+    c.add_argument("criteria", nargs="?", help="met criteria, separated by commas, semicolons or spaces (PM2_Supporting, BS1_Stand Alone, "
+                                              "PVS1 ...)")
     c.add_argument("--tsv", metavar="FILE", help="classify every row of a TSV with a criteria_met column (and gene "
-                                                 "when present); writes the rows with class, rule_set, rule, points "
-                                                 "and posterior added to standard output (.gz read too)")
+                                                 "when present); writes the rows with class, rule_set, rule, points, "
+                                                 "posterior and rule_set_sha256 added to standard output (.gz read "
+                                                 "too)")
     cg = c.add_mutually_exclusive_group()
     cg.add_argument("--gene", help="use this gene's rule set (default: the default rule set)")
     cg.add_argument("--rule-set", metavar="NAME", help="use this rule set by name")

@@ -115,7 +115,10 @@ def test_tsv_rows(tmp_path):
     assert p.returncode == 0, p.stderr
     rows = list(csv.DictReader(io.StringIO(p.stdout), delimiter="\t"))
     assert list(rows[0]) == ["id", "gene", "criteria_met", "class", "rule_set", "rule", "points", "posterior",
-                             "caution"]
+                             "rule_set_sha256", "caution"]
+    sets = load_combining().rule_sets
+    assert [r["rule_set_sha256"] for r in rows] == [sets[r["rule_set"]].sha256 for r in rows]
+    assert all(len(r["rule_set_sha256"]) == 64 for r in rows)
     assert [r["id"] for r in rows] == ["a", "b", "c"]
     # BS1 alone: -4 points, Likely benign in the general rule set (one Strong benign criterion)
     assert [r["class"] for r in rows] == ["Likely pathogenic", "Likely benign", "Uncertain significance"]
@@ -247,7 +250,8 @@ def test_tsv_row_names_its_rule_set(tmp_path):
     p = run("--tsv", str(src))
     assert p.returncode == 0, p.stderr
     rows = list(csv.DictReader(io.StringIO(p.stdout), delimiter="\t"))
-    assert list(rows[0]) == ["gene", "criteria_met", "rule_set", "class", "rule", "points", "posterior", "caution"]
+    assert list(rows[0]) == ["gene", "criteria_met", "rule_set", "class", "rule", "points", "posterior",
+                             "rule_set_sha256", "caution"]
     assert [r["rule_set"] for r in rows] == ["acmg-2015-svi", "clingen-hearing-loss-v2"]
     # Table 5 "Uncertain significance (ii)" (contradictory) in both: the plain table named in the row, and the
     # Hearing Loss specification for USH2A (BS1 reaches Likely benign only "provided there is no conflicting
