@@ -166,6 +166,21 @@ def test_parse_white_space_lists_and_abbreviated_strengths():
             parse_criteria(bad)
 
 
+def test_lca_eord_specifications_combine_on_points():
+    # LCA/eoRD VCEP RPE65 v1.0.0 (GN120): "The point system of Tavtigian et al. 2020 ... is used for all
+    # classifications" (secondary transcription of the specification); bands Tavtigian 2020 Table 3
+    p = run("PVS1", "--gene", "RPE65")  # 8 points: Likely pathogenic (Table 5 alone: no line fits)
+    assert field(p.stdout, "Class") == "Likely pathogenic"
+    p = run("BP4", "--gene", "RPE65")  # -1 point: Likely benign
+    assert field(p.stdout, "Class") == "Likely benign"
+    p = run("BA1, PVS1", "--gene", "CEP290")  # BA1 stays stand-alone Benign (GN226)
+    assert field(p.stdout, "Class") == "Benign"
+    p = run("PVS1", "--gene", "GUCY2D")  # GN167 keeps the table where the evidence does not conflict
+    assert field(p.stdout, "Class") == "Uncertain significance"
+    p = run("PM2_Supporting, PP3, BS1", "--gene", "GUCY2D")  # conflicting: 1 + 1 - 4 = -2 points, LB
+    assert field(p.stdout, "Class") == "Likely benign"
+
+
 def test_general_rule_set_very_strong_and_supporting():
     # 1 Very Strong + 1 Supporting: Likely pathogenic in the general reading (several ClinGen
     # specifications' combining sections, secondary transcriptions; 9 points, Tavtigian 2020 Table 3);
@@ -195,8 +210,12 @@ def test_bundled_file_loads_and_hashes():
     rs = comb.rule_sets
     # each rule set has its own hash over its resolved content (name, version, source, table, rules):
     # two rule sets with the same rules still differ, and editing one rule set changes only its hash
-    assert rs["clingen-lca-eord-rpe65-v1"].rules == rs["clingen-svi-general"].rules
-    assert rs["clingen-lca-eord-rpe65-v1"].sha256 != rs["clingen-svi-general"].sha256
+    # the LCA/eoRD panel's RPE65, AIPL1 and CEP290 specifications all combine on points: same content but
+    # the name, version and source, so each has its own hash
+    assert {rs[n].method for n in ("clingen-lca-eord-rpe65-v1", "clingen-lca-eord-aipl1-v1",
+                                   "clingen-lca-eord-cep290-v1")} == {"points"}
+    assert rs["clingen-lca-eord-rpe65-v1"].sha256 != rs["clingen-lca-eord-aipl1-v1"].sha256
+    assert {comb.for_gene(g).name for g in ("OTOF", "MYO15A")} == {"clingen-hearing-loss-v2"}  # GN023
     assert len({r.sha256 for r in rs.values()}) == len(rs) and comb.sha256 not in {r.sha256 for r in rs.values()}
     text = (ROOT / "panels" / "combining.yaml").read_text()
     edited = parse_combining(text.replace("conflict: points", "conflict: uncertain", 1).encode(), None,
