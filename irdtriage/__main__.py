@@ -8,7 +8,14 @@ def run() -> None:
     except KeyboardInterrupt:  # Ctrl-C while the program is still loading: nothing was started or written
         print("irdtriage: interrupted while starting; nothing was written", file=sys.stderr)
         sys.exit(130)
-    sys.exit(main())
+    try:
+        code = main(exiting=True)
+    except KeyboardInterrupt:  # Ctrl-C outside the command's own signal handling (start or end)
+        from .cli import interrupted_message
+
+        print(interrupted_message(), file=sys.stderr)
+        sys.exit(130)
+    sys.exit(code)
 
 
 if __name__ == "__main__":

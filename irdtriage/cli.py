@@ -285,7 +285,33 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
-def main(argv: Optional[Sequence[str]] = None) -> int:
+_RUNNING: dict = {}  # the parsed arguments of the command being run (read by interrupted_message)
+
+
+def interrupted_message() -> str:
+    """What to say when a Ctrl-C escapes :func:`main` (it can only land before the command's signal
+    handlers are in place or while they are being taken down)."""
+    args = _RUNNING.get("args")
+    if args is None:
+        return "irdtriage: interrupted while starting; nothing was written"
+    return f"irdtriage: interrupted; {_outcome(args)}"
+
+
+def _ignore_late_signals() -> None:
+    """The command has finished (outputs complete, or its error reported): a SIGINT/SIGTERM/SIGHUP
+    landing while the process exits must not turn a finished run into a failed one."""
+    for name in ("SIGINT", "SIGTERM", "SIGHUP"):
+        if hasattr(signal, name):
+            try:
+                signal.signal(getattr(signal, name), signal.SIG_IGN)
+            except (OSError, ValueError):  # pragma: no cover - not the main thread
+                pass
+
+
+def main(argv: Optional[Sequence[str]] = None, *, exiting: bool = False) -> int:
+    """Run one command; the exit status is returned.  ``exiting``: the process ends right after
+    (the ``irdtriage`` program), so signals are ignored once the command has finished instead of
+    the previous handlers being restored."""
     argv = list(sys.argv[1:] if argv is None else argv)
     _quiet_htslib()
     parser = build_parser()
@@ -293,6 +319,7 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
     if not args.command:
         parser.print_help()
         return 2
+    _RUNNING["args"] = args
     restore_signals = _install_signal_handlers()
     try:
         if args.command == "triage":
@@ -333,7 +360,10 @@ def main(argv: Optional[Sequence[str]] = None) -> int:
               file=sys.stderr)
         return 1
     finally:
-        restore_signals()
+        if exiting:
+            _ignore_late_signals()
+        else:
+            restore_signals()
     return 0
 
 

@@ -364,3 +364,33 @@ def test_two_rename_swap_replaces_folder_whole(tmp_path: Path):
     swap_in(staging, target, exchange=False)
     assert [p.name for p in target.iterdir()] == ["new.txt"]
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
+
+
+# --- a signal after the command has finished ------------------------------------------------
+
+def test_signals_after_the_command_are_ignored_and_messages_name_the_state(tmp_path: Path):
+    # Regression (hostile corpus): a SIGINT landing after the new output set was complete, while the
+    # process was exiting, ended the finished run with a non-zero status and no message.  The program
+    # entry (main(exiting=True)) now ignores SIGINT/SIGTERM/SIGHUP once the command has finished, and a
+    # Ctrl-C that escapes main is described by the state the run reached (signal(7): SIG_IGN).
+    code = (
+        "import signal, sys\n"
+        "from irdtriage import cli\n"
+        "assert cli.interrupted_message() == 'irdtriage: interrupted while starting; nothing was written'\n"
+        "rc = cli.main(['panel', 'list'], exiting=True)\n"
+        "assert rc == 0, rc\n"
+        "assert signal.getsignal(signal.SIGINT) == signal.SIG_IGN\n"
+        "assert signal.getsignal(signal.SIGTERM) == signal.SIG_IGN\n"
+        "rc = cli.main(['panel', 'list'])\n"  # a library call restores the handlers it found
+        "assert signal.getsignal(signal.SIGINT) == signal.SIG_IGN\n"
+        "signal.signal(signal.SIGINT, signal.default_int_handler)\n"
+        "cli.main(['panel', 'list'])\n"
+        "assert signal.getsignal(signal.SIGINT) is signal.default_int_handler\n"
+        "class Tx: committed = True; given = 'OUT'\n"
+        "cli._RUNNING['args'].transaction = Tx()\n"
+        "assert cli.interrupted_message() == 'irdtriage: interrupted; the outputs in OUT were complete before it stopped'\n"
+        "print('ok')\n"
+    )
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, env=_env(),
+                          timeout=TIMEOUT)
+    assert proc.returncode == 0 and proc.stdout.strip().endswith("ok"), proc.stderr
